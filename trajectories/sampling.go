@@ -1,0 +1,105 @@
+package trajectories
+
+import "fmt"
+
+// Family names the kind of sampling, which fixes what a shot is and what the
+// fully sampled reference is.
+const (
+	// FamilyCartesian2D is a 2D Cartesian scan: a shot is one phase-encode
+	// line (one ky row, readout along kx fully sampled); the reference is ny
+	// lines.
+	FamilyCartesian2D = "cartesian-2d"
+)
+
+// Scheme names of the 2D Cartesian constructors.
+const (
+	SchemeCartesianUniform = "cartesian-uniform"
+	SchemeCartesianRandom  = "cartesian-random"
+)
+
+// Sampling is a plain description of one acquisition's sampling pattern and its
+// acceleration bookkeeping. It is safe to copy; constructors never share its
+// slices with other values.
+type Sampling struct {
+	// Scheme names the constructor that made it, e.g. "cartesian-uniform".
+	Scheme string
+	// Family names the kind of sampling, e.g. FamilyCartesian2D.
+	Family string
+	// Dim is the number of spatial dimensions of the reconstructed grid.
+	Dim int
+	// Nx, Ny are the grid size (columns, rows).
+	Nx, Ny int
+	// Mask is ny*nx, row-major, on the centred k-space grid: row m is
+	// ky = m − ny/2, column n is kx = n − nx/2. Nil for non-Cartesian
+	// families.
+	Mask []bool
+	// Lines lists the acquired phase-encode rows (indices m), ascending.
+	Lines []int
+	// Shots is the number of shots acquired (lines for 2D Cartesian).
+	Shots int
+	// FullShots is the family's fully sampled reference (ny lines for 2D
+	// Cartesian).
+	FullShots int
+	// R is the achieved acceleration FullShots / Shots, as achieved rather
+	// than as requested.
+	R float64
+	// Calib is the number of fully sampled central calibration lines.
+	Calib int
+}
+
+// SampledFraction returns the fraction of the grid's k-space samples that the
+// mask acquires, or 0 when there is no mask.
+func (s Sampling) SampledFraction() float64 {
+	if len(s.Mask) == 0 {
+		return 0
+	}
+	c := 0
+	for _, v := range s.Mask {
+		if v {
+			c++
+		}
+	}
+	return float64(c) / float64(len(s.Mask))
+}
+
+// Validate checks that the bookkeeping of s is self-consistent: mask size,
+// ascending unique lines inside the grid, mask rows matching Lines, and R equal
+// to FullShots/Shots. It is meant for Sampling values built or edited by hand.
+func (s Sampling) Validate() error {
+	if s.Nx < 1 || s.Ny < 1 {
+		return fmt.Errorf("trajectories: grid %d×%d: both sizes must be at least 1", s.Ny, s.Nx)
+	}
+	if s.Shots < 1 || s.FullShots < 1 {
+		return fmt.Errorf("trajectories: shots %d of %d: both must be at least 1", s.Shots, s.FullShots)
+	}
+	if want := float64(s.FullShots) / float64(s.Shots); s.R != want {
+		return fmt.Errorf("trajectories: R = %g but FullShots/Shots = %g", s.R, want)
+	}
+	if s.Family != FamilyCartesian2D {
+		return nil
+	}
+	if len(s.Mask) != s.Nx*s.Ny {
+		return fmt.Errorf("trajectories: mask has %d entries, want %d×%d = %d", len(s.Mask), s.Ny, s.Nx, s.Nx*s.Ny)
+	}
+	if len(s.Lines) != s.Shots {
+		return fmt.Errorf("trajectories: %d lines listed but Shots = %d", len(s.Lines), s.Shots)
+	}
+	acq := make([]bool, s.Ny)
+	for i, m := range s.Lines {
+		if m < 0 || m >= s.Ny {
+			return fmt.Errorf("trajectories: line %d outside rows 0..%d", m, s.Ny-1)
+		}
+		if i > 0 && m <= s.Lines[i-1] {
+			return fmt.Errorf("trajectories: lines not strictly ascending at position %d", i)
+		}
+		acq[m] = true
+	}
+	for m := 0; m < s.Ny; m++ {
+		for n := 0; n < s.Nx; n++ {
+			if s.Mask[m*s.Nx+n] != acq[m] {
+				return fmt.Errorf("trajectories: mask row %d disagrees with Lines", m)
+			}
+		}
+	}
+	return nil
+}
