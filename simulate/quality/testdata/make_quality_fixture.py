@@ -18,6 +18,7 @@ Reference values:
   hfen      ||LoG(x-ref)|| / ||LoG(ref)|| with a 15x15, sigma=1.5 LoG kernel
             built here directly in 2D and applied by
             scipy.ndimage.correlate(mode='constant', cval=0)
+  hfen_kernel  that 15x15 kernel, row-major
 
 Images are little-endian float64 (.f64), row-major; rois are uint8 (.u8).
 Every random draw is seeded.
@@ -121,7 +122,7 @@ def main():
         'made_by': 'make_quality_fixture.py',
         'versions': {'skimage': skimage.__version__, 'scipy': scipy.__version__,
                      'numpy': np.__version__},
-        'hfen_kernel_sum': float(log_kernel().sum()),
+        'hfen_kernel': [float(v) for v in log_kernel().ravel()],
         'cases': cases,
     }
     with open('quality_fixture.json', 'w') as f:
