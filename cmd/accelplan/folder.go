@@ -1,0 +1,165 @@
+package main
+
+import (
+	"fmt"
+	"os"
+	"path/filepath"
+	"strconv"
+	"strings"
+
+	"accelplan/out"
+	"accelplan/plans"
+)
+
+func ff(x float64) string { return strconv.FormatFloat(x, 'g', 8, 64) }
+
+// slug makes a label safe for a file name.
+func slug(s string) string {
+	var b strings.Builder
+	dash := false
+	for _, r := range strings.ToLower(s) {
+		if (r >= 'a' && r <= 'z') || (r >= '0' && r <= '9') || r == '.' {
+			b.WriteRune(r)
+			dash = false
+		} else if !dash && b.Len() > 0 {
+			b.WriteByte('-')
+			dash = true
+		}
+	}
+	return strings.TrimRight(b.String(), "-")
+}
+
+// imageName is the file stem of one candidate × method.
+func imageName(o *plans.Outcome, ci, ri int) string {
+	c := o.Candidates[ci]
+	return fmt.Sprintf("%s_R%s_%s", slug(o.Plan.Schemes[c.Scheme].Label), ff(c.AskedR), slug(o.Plan.Recons[ri].Label))
+}
+
+// writeFolder writes every output of a run into dir.
+func writeFolder(dir string, o *plans.Outcome, a *plans.Analysis, version, caution string) error {
+	p := o.Plan
+	ny, nx := p.Object.PhaseLines, p.Object.ReadoutPoints
+	if err := os.WriteFile(filepath.Join(dir, "plan.toml"), p.Text, 0o644); err != nil {
+		return err
+	}
+	// results.csv: one row per candidate, method and scored noise draw.
+	header := []string{"scheme", "pattern", "asked_R", "achieved_R", "lines", "scan_time_s", "scan_time", "method",
+		"lambda_rel", "lambda_rule", "repeat", "noise_seed", "nrmse", "psnr_db", "ssim", "iterations", "recon_seconds"}
+	var rows [][]string
+	for _, r := range o.Results {
+		c := o.Candidates[r.Candidate]
+		s := p.Schemes[c.Scheme]
+		rows = append(rows, []string{s.Label, s.Pattern, ff(c.AskedR), ff(c.Sampling.R), strconv.Itoa(c.Sampling.Shots),
+			ff(c.ScanTime), out.FormatMinSec(c.ScanTime), p.Recons[r.Recon].Label, ff(r.Lambda), r.LambdaRule,
+			strconv.Itoa(r.Repeat), strconv.FormatUint(r.NoiseSeed, 10), ff(r.NRMSE), ff(r.PSNR), ff(r.SSIM),
+			strconv.Itoa(r.Iterations), strconv.FormatFloat(r.Seconds, 'f', 4, 64)})
+	}
+	if err := out.WriteCSV(filepath.Join(dir, "results.csv"), header, rows); err != nil {
+		return err
+	}
+	// summary.csv: one row per candidate and method.
+	header = []string{"scheme", "method", "asked_R", "achieved_R", "lines", "scan_time_s", "scan_time", "draws"}
+	for _, m := range []string{"ssim", "psnr_db", "nrmse"} {
+		header = append(header, m+"_mean", m+"_sd", m+"_lower95", m+"_upper95")
+	}
+	header = append(header, "lambda_rel", "lambda_rule", "meets_bar", "recommended")
+	rows = rows[:0]
+	for i, r := range a.Rows {
+		row := []string{r.Scheme, r.Method, ff(r.AskedR), ff(r.R), strconv.Itoa(r.Shots), ff(r.ScanTime), out.FormatMinSec(r.ScanTime), strconv.Itoa(r.SSIM.N)}
+		for _, s := range []plans.Summary{r.SSIM, r.PSNR, r.NRMSE} {
+			row = append(row, ff(s.Mean), ff(s.Std), ff(s.Lower), ff(s.Upper))
+		}
+		rec := "no"
+		if i == a.Best {
+			rec = "overall"
+		} else {
+			for _, cv := range a.Curves {
+				if cv.Pick == i {
+					rec = "for its scheme and method"
+				}
+			}
+		}
+		row = append(row, ff(r.Lambda), r.LambdaRule, strconv.FormatBool(r.Meets), rec)
+		rows = append(rows, row)
+	}
+	if err := out.WriteCSV(filepath.Join(dir, "summary.csv"), header, rows); err != nil {
+		return err
+	}
+	if err := writeCurve(dir, o, a, caution); err != nil {
+		return err
+	}
+	// Images: truth, then per candidate the mask, and per method the first
+	// scored reconstruction and its error map on one shared scale.
+	img := filepath.Join(dir, "images")
+	if err := os.MkdirAll(img, 0o755); err != nil {
+		return err
+	}
+	if err := out.WriteGrayPNG(filepath.Join(img, "truth.png"), o.Truth, ny, nx, 0, 1); err != nil {
+		return err
+	}
+	errLimit := 0.0
+	for ci := range o.Candidates {
+		for ri := range p.Recons {
+			for i, v := range o.Images[ci][ri] {
+				if d := abs(v - o.Truth[i]); d > errLimit {
+					errLimit = d
+				}
+			}
+		}
+	}
+	if errLimit == 0 {
+		errLimit = 1
+	}
+	for ci, c := range o.Candidates {
+		maskName := fmt.Sprintf("mask_%s_R%s.png", slug(p.Schemes[c.Scheme].Label), ff(c.AskedR))
+		if err := out.WriteMaskPNG(filepath.Join(img, maskName), c.Sampling.Mask, ny, nx); err != nil {
+			return err
+		}
+		for ri := range p.Recons {
+			stem := imageName(o, ci, ri)
+			m := o.Images[ci][ri]
+			if err := out.WriteGrayPNG(filepath.Join(img, stem+".png"), m, ny, nx, 0, 1); err != nil {
+				return err
+			}
+			diff := make([]float64, len(m))
+			for i := range m {
+				diff[i] = m[i] - o.Truth[i]
+			}
+			if err := out.WriteDivergingPNG(filepath.Join(img, stem+"_error.png"), diff, ny, nx, errLimit); err != nil {
+				return err
+			}
+		}
+	}
+	var b strings.Builder
+	printRecommendation(&b, o, a, p.Output)
+	fmt.Fprintf(&b, "\nError maps share one colour scale: ±%.3g (reconstruction − truth).\n", errLimit)
+	fmt.Fprintf(&b, "accelplan %s; plan %s; seed %d; noise σ per sample %.4g.\n\n%s\n", version, p.Source, p.Seed, o.Sigma, caution)
+	return os.WriteFile(filepath.Join(dir, "recommendation.txt"), []byte(b.String()), 0o644)
+}
+
+func abs(x float64) float64 {
+	if x < 0 {
+		return -x
+	}
+	return x
+}
+
+func writeCurve(dir string, o *plans.Outcome, a *plans.Analysis, caution string) error {
+	p := o.Plan
+	chart := out.CurveChart{Title: p.Title, Metric: strings.ToUpper(a.Metric), Threshold: a.Threshold,
+		HigherIsBetter: plans.HigherIsBetter(a.Metric), Caution: strings.TrimPrefix(caution, "CAUTION: "), Bars: out.BarsBound}
+	for ci, cv := range a.Curves {
+		c := out.Curve{Name: p.Schemes[cv.Scheme].Label + " · " + p.Recons[cv.Recon].Label}
+		for pi, ri := range cv.Rows {
+			r := a.Rows[ri]
+			s := r.Metric(a.Metric)
+			c.Points = append(c.Points, out.CurvePoint{Label: fmt.Sprintf("R=%.2g", r.R), ScanTime: r.ScanTime,
+				Mean: s.Mean, Std: s.Std, Lower: r.Bound(a.Metric), N: s.N})
+			if ri == a.Best {
+				chart.Pick = &out.PointRef{Curve: ci, Point: pi}
+			}
+		}
+		chart.Curves = append(chart.Curves, c)
+	}
+	return out.PlotCurve(filepath.Join(dir, "curve.png"), filepath.Join(dir, "curve.svg"), chart)
+}

@@ -1,0 +1,535 @@
+// Package plans owns the plan file: its schema and validation, the expansion
+// of a plan into sweep points, the scan-time models, the runner that simulates
+// and reconstructs every point on a worker pool, and the statistics and the
+// recommendation drawn from the results.
+package plans
+
+import (
+	"bytes"
+	"embed"
+	"errors"
+	"fmt"
+	"math"
+	"os"
+	"sort"
+	"strconv"
+	"strings"
+
+	"github.com/BurntSushi/toml"
+)
+
+//go:embed builtin/*.toml
+var builtinFS embed.FS
+
+// BuiltinName is the name of the plan run when no plan file is given.
+const BuiltinName = "builtin/brain-t2-survey.toml"
+
+// Builtin returns the text of the built-in plan. It is annotated and doubles
+// as the starter plan that users copy and edit.
+func Builtin() []byte {
+	b, err := builtinFS.ReadFile(BuiltinName)
+	if err != nil {
+		panic("plans: built-in plan missing from the binary: " + err.Error())
+	}
+	return b
+}
+
+// Plan is a validated plan file.
+type Plan struct {
+	Title   string `toml:"title"`
+	Seed    uint64 `toml:"seed"`
+	Repeats int    `toml:"repeats"`
+	Output  string `toml:"output"`
+
+	Object  Object     `toml:"object"`
+	Scanner Scanner    `toml:"scanner"`
+	Schemes []Scheme   `toml:"scheme"`
+	Recons  []Recon    `toml:"recon"`
+	Accept  Acceptance `toml:"accept"`
+
+	// Source is the file the plan was read from ("built-in" for the built-in
+	// plan); Text is its content, kept for hashing and the manifest.
+	Source string `toml:"-"`
+	Text   []byte `toml:"-"`
+}
+
+// Object says what is imaged and on which grid it is reconstructed.
+type Object struct {
+	Phantom       string  `toml:"phantom"`
+	PhaseLines    int     `toml:"phase_lines"`
+	ReadoutPoints int     `toml:"readout_points"`
+	FOVmm         float64 `toml:"fov_mm"`
+}
+
+// Scanner says how the instrument spends time and how noisy it is.
+type Scanner struct {
+	TRms         float64 `toml:"tr_ms"`
+	EchoTrain    int     `toml:"echo_train"`
+	Averages     int     `toml:"averages"`
+	ReferenceSNR float64 `toml:"reference_snr"`
+}
+
+// Scheme is one sampling scheme with the accelerations to try.
+type Scheme struct {
+	Label            string    `toml:"label"`
+	Pattern          string    `toml:"pattern"`
+	Accelerations    []float64 `toml:"accelerations"`
+	CalibrationLines int       `toml:"calibration_lines"`
+	DensityPower     float64   `toml:"density_power"`
+}
+
+// Recon is one reconstruction method and its parameters.
+type Recon struct {
+	Label      string    `toml:"label"`
+	Method     string    `toml:"method"`
+	Wavelet    string    `toml:"wavelet"`
+	Levels     int       `toml:"levels"`
+	Iterations int       `toml:"iterations"`
+	Lambda     float64   `toml:"lambda"`
+	LambdaLook []float64 `toml:"lambda_search"`
+}
+
+// Acceptance is the quality bar a protocol must meet.
+type Acceptance struct {
+	Metric    string  `toml:"metric"`
+	Threshold float64 `toml:"threshold"`
+}
+
+// The pattern, method and metric names a plan may use.
+const (
+	PatternUniform = "cartesian-uniform"
+	PatternRandom  = "cartesian-random"
+
+	MethodZeroFilled   = "zero-filled"
+	MethodFISTAWavelet = "fista-wavelet"
+
+	MetricSSIM  = "ssim"
+	MetricPSNR  = "psnr"
+	MetricNRMSE = "nrmse"
+)
+
+var (
+	patterns = []string{PatternUniform, PatternRandom}
+	methods  = []string{MethodZeroFilled, MethodFISTAWavelet}
+	metrics  = []string{MetricSSIM, MetricPSNR, MetricNRMSE}
+	phantoms = []string{"modified-shepp-logan"}
+	wavelets = []string{"haar", "db2", "db3", "db4", "db5", "db6", "db7", "db8"}
+)
+
+// Error is a mistake in a plan file. It names the file, the line (0 when the
+// mistake is not tied to one line), the key and what to do about it.
+type Error struct {
+	File string
+	Line int
+	Key  string
+	Msg  string
+	Hint string
+}
+
+func (e *Error) Error() string {
+	var b strings.Builder
+	b.WriteString(e.File)
+	if e.Line > 0 {
+		fmt.Fprintf(&b, ":%d", e.Line)
+	}
+	if e.Key != "" {
+		fmt.Fprintf(&b, ": %s", e.Key)
+	}
+	fmt.Fprintf(&b, ": %s", e.Msg)
+	if e.Hint != "" {
+		fmt.Fprintf(&b, " (%s)", e.Hint)
+	}
+	return b.String()
+}
+
+// Load reads and validates a plan file.
+func Load(path string) (*Plan, error) {
+	text, err := os.ReadFile(path)
+	if err != nil {
+		if errors.Is(err, os.ErrNotExist) {
+			return nil, fmt.Errorf("plan file %s does not exist (write a starter plan with `accelplan new %s`)", path, path)
+		}
+		return nil, fmt.Errorf("cannot read plan file: %w", err)
+	}
+	return Parse(path, text)
+}
+
+// LoadBuiltin returns the validated built-in plan.
+func LoadBuiltin() *Plan {
+	p, err := Parse("built-in plan", Builtin())
+	if err != nil {
+		panic("plans: the built-in plan is invalid: " + err.Error())
+	}
+	return p
+}
+
+// Parse decodes and validates plan text; file names the source in messages.
+func Parse(file string, text []byte) (*Plan, error) {
+	if !bytes.Contains(text, []byte("\n")) && len(bytes.TrimSpace(text)) == 0 {
+		return nil, &Error{File: file, Msg: "the plan is empty", Hint: "write a starter plan with `accelplan new plan.toml`"}
+	}
+	var p Plan
+	md, err := toml.Decode(string(text), &p)
+	if err != nil {
+		return nil, decodeError(file, string(text), err)
+	}
+	if und := md.Undecoded(); len(und) > 0 {
+		k := und[0]
+		return nil, &Error{File: file, Line: findKey(string(text), k), Key: k.String(),
+			Msg: "unknown key", Hint: "see `accelplan new` for the keys a plan may have; check the spelling and the [table] it sits in"}
+	}
+	p.Source = file
+	p.Text = text
+	v := validator{file: file, text: string(text)}
+	v.plan(&p)
+	if v.err != nil {
+		return nil, v.err
+	}
+	return &p, nil
+}
+
+func decodeError(file, text string, err error) error {
+	var pe toml.ParseError
+	if errors.As(err, &pe) {
+		return &Error{File: file, Line: pe.Position.Line, Key: pe.LastKey, Msg: "malformed TOML: " + pe.Message,
+			Hint: "fix the syntax on that line; strings need quotes, lists need [ ]"}
+	}
+	msg := err.Error()
+	// The decoder reports type mismatches as "toml: line N (last key "k"): ...".
+	line := 0
+	key := ""
+	if i := strings.Index(msg, "line "); i >= 0 {
+		rest := msg[i+5:]
+		j := strings.IndexFunc(rest, func(r rune) bool { return r < '0' || r > '9' })
+		if j > 0 {
+			line, _ = strconv.Atoi(rest[:j])
+		}
+	}
+	if i := strings.Index(msg, `last key "`); i >= 0 {
+		rest := msg[i+10:]
+		if j := strings.Index(rest, `"`); j >= 0 {
+			key = rest[:j]
+		}
+	}
+	if j := strings.LastIndex(msg, "): "); j >= 0 {
+		msg = msg[j+3:]
+	}
+	msg = strings.TrimPrefix(msg, "toml: ")
+	if line == 0 && key != "" {
+		line = findKey(text, strings.Split(key, "."))
+	}
+	return &Error{File: file, Line: line, Key: key, Msg: "wrong type: " + msg,
+		Hint: "numbers go without quotes, names in quotes, lists in [ ]; see `accelplan new`"}
+}
+
+// findKey returns the line of key path k in text, or 0. Array-of-table
+// indices are not part of k, so the first match is returned.
+func findKey(text string, k []string) int {
+	if len(k) == 0 {
+		return 0
+	}
+	table := strings.Join(k[:len(k)-1], ".")
+	return findKeyIn(text, table, -1, k[len(k)-1])
+}
+
+// findKeyIn returns the line of key inside table (the index-th block of an
+// array of tables when index >= 0), or the line of the table header when key
+// is empty, or 0 when it is not there.
+func findKeyIn(text, table string, index int, key string) int {
+	cur := ""
+	count := map[string]int{}
+	curIndex := -1
+	for n, raw := range strings.Split(text, "\n") {
+		line := strings.TrimSpace(raw)
+		if strings.HasPrefix(line, "[[") {
+			end := strings.Index(line, "]]")
+			if end < 0 {
+				continue
+			}
+			cur = strings.TrimSpace(line[2:end])
+			curIndex = count[cur]
+			count[cur]++
+			if key == "" && cur == table && (index < 0 || index == curIndex) {
+				return n + 1
+			}
+			continue
+		}
+		if strings.HasPrefix(line, "[") {
+			end := strings.Index(line, "]")
+			if end < 0 {
+				continue
+			}
+			cur = strings.TrimSpace(line[1:end])
+			curIndex = -1
+			if key == "" && cur == table {
+				return n + 1
+			}
+			continue
+		}
+		if key == "" || cur != table || (index >= 0 && curIndex != index) {
+			continue
+		}
+		if eq := strings.Index(line, "="); eq > 0 {
+			name := strings.Trim(strings.TrimSpace(line[:eq]), `"'`)
+			if name == key {
+				return n + 1
+			}
+		}
+	}
+	return 0
+}
+
+// validator collects the first mistake in a plan.
+type validator struct {
+	file string
+	text string
+	err  error
+}
+
+func (v *validator) fail(table string, index int, key, msg, hint string) {
+	if v.err != nil {
+		return
+	}
+	line := findKeyIn(v.text, table, index, key)
+	if line == 0 && key != "" {
+		line = findKeyIn(v.text, table, index, "")
+	}
+	name := key
+	if table != "" {
+		t := table
+		if index >= 0 {
+			t = fmt.Sprintf("%s[%d]", table, index+1)
+		}
+		if key != "" {
+			name = t + "." + key
+		} else {
+			name = t
+		}
+	}
+	v.err = &Error{File: v.file, Line: line, Key: name, Msg: msg, Hint: hint}
+}
+
+func oneOf(s string, list []string) bool {
+	for _, x := range list {
+		if s == x {
+			return true
+		}
+	}
+	return false
+}
+
+func finite(x float64) bool { return !math.IsNaN(x) && !math.IsInf(x, 0) }
+
+func (v *validator) plan(p *Plan) {
+	if p.Repeats == 0 {
+		p.Repeats = 4
+	}
+	if p.Repeats < 2 || p.Repeats > 1000 {
+		v.fail("", -1, "repeats", fmt.Sprintf("must be between 2 and 1000, got %d", p.Repeats),
+			"at least 2 scored noise draws are needed for a confidence bound")
+	}
+	if p.Output == "" {
+		p.Output = "accelplan-out"
+	}
+	o := &p.Object
+	if o.Phantom == "" {
+		o.Phantom = phantoms[0]
+	}
+	if !oneOf(o.Phantom, phantoms) {
+		v.fail("object", -1, "phantom", fmt.Sprintf("unknown phantom %q", o.Phantom), "choose one of: "+strings.Join(phantoms, ", "))
+	}
+	if o.PhaseLines < 16 || o.PhaseLines > 1024 {
+		v.fail("object", -1, "phase_lines", fmt.Sprintf("must be between 16 and 1024, got %d", o.PhaseLines), "typical values are 128 to 512")
+	}
+	if o.ReadoutPoints < 16 || o.ReadoutPoints > 1024 {
+		v.fail("object", -1, "readout_points", fmt.Sprintf("must be between 16 and 1024, got %d", o.ReadoutPoints), "typical values are 128 to 512")
+	}
+	if !(o.FOVmm > 0) || !finite(o.FOVmm) || o.FOVmm > 1000 {
+		v.fail("object", -1, "fov_mm", fmt.Sprintf("must be a positive number up to 1000 mm, got %v", o.FOVmm), "")
+	}
+	s := &p.Scanner
+	if !(s.TRms > 0) || !finite(s.TRms) || s.TRms > 60000 {
+		v.fail("scanner", -1, "tr_ms", fmt.Sprintf("must be between 0 and 60000 ms, got %v", s.TRms), "the repetition time in milliseconds")
+	}
+	if s.EchoTrain == 0 {
+		s.EchoTrain = 1
+	}
+	if s.EchoTrain < 1 || s.EchoTrain > 512 {
+		v.fail("scanner", -1, "echo_train", fmt.Sprintf("must be between 1 and 512, got %d", s.EchoTrain), "1 for a gradient or spin echo, more for a fast spin echo")
+	}
+	if s.Averages == 0 {
+		s.Averages = 1
+	}
+	if s.Averages < 1 || s.Averages > 64 {
+		v.fail("scanner", -1, "averages", fmt.Sprintf("must be between 1 and 64, got %d", s.Averages), "")
+	}
+	if !(s.ReferenceSNR > 0) || !finite(s.ReferenceSNR) || s.ReferenceSNR > 1e6 {
+		v.fail("scanner", -1, "reference_snr", fmt.Sprintf("must be a positive number, got %v", s.ReferenceSNR),
+			"mean signal in the object over the image noise σ of the fully sampled scan; 20 to 100 is typical")
+	}
+	if len(p.Schemes) == 0 {
+		v.fail("", -1, "", "the plan has no [[scheme]]", "add at least one [[scheme]] table; see `accelplan new`")
+	}
+	for i := range p.Schemes {
+		v.scheme(p, i)
+	}
+	if len(p.Recons) == 0 {
+		v.fail("", -1, "", "the plan has no [[recon]]", "add at least one [[recon]] table; see `accelplan new`")
+	}
+	for i := range p.Recons {
+		v.recon(p, i)
+	}
+	a := &p.Accept
+	if a.Metric == "" {
+		a.Metric = MetricSSIM
+	}
+	if !oneOf(a.Metric, metrics) {
+		v.fail("accept", -1, "metric", fmt.Sprintf("unknown metric %q", a.Metric), "choose one of: "+strings.Join(metrics, ", "))
+	}
+	lo, hi := thresholdRange(a.Metric)
+	if !finite(a.Threshold) || a.Threshold <= lo || a.Threshold >= hi {
+		v.fail("accept", -1, "threshold", fmt.Sprintf("must lie strictly between %v and %v for %s, got %v", lo, hi, a.Metric, a.Threshold),
+			"e.g. 0.9 for ssim, 30 for psnr (dB), 0.1 for nrmse")
+	}
+}
+
+func thresholdRange(metric string) (lo, hi float64) {
+	switch metric {
+	case MetricPSNR:
+		return 0, 200
+	case MetricNRMSE:
+		return 0, 10
+	}
+	return 0, 1
+}
+
+func (v *validator) scheme(p *Plan, i int) {
+	s := &p.Schemes[i]
+	if s.Pattern == "" {
+		v.fail("scheme", i, "pattern", "missing", "choose one of: "+strings.Join(patterns, ", "))
+		return
+	}
+	if !oneOf(s.Pattern, patterns) {
+		v.fail("scheme", i, "pattern", fmt.Sprintf("unknown sampling pattern %q", s.Pattern), "choose one of: "+strings.Join(patterns, ", "))
+		return
+	}
+	if s.Label == "" {
+		s.Label = fmt.Sprintf("%s %d", s.Pattern, i+1)
+	}
+	for j, o := range p.Schemes[:i] {
+		if o.Label == s.Label {
+			v.fail("scheme", i, "label", fmt.Sprintf("label %q is used by scheme %d too", s.Label, j+1), "give each scheme its own label")
+		}
+	}
+	ny := p.Object.PhaseLines
+	if s.CalibrationLines < 0 || s.CalibrationLines > ny {
+		v.fail("scheme", i, "calibration_lines", fmt.Sprintf("must be between 0 and the %d phase-encode lines, got %d", ny, s.CalibrationLines), "")
+	}
+	if s.Pattern == PatternRandom {
+		if s.DensityPower == 0 {
+			s.DensityPower = 3
+		}
+		if !(s.DensityPower > 0) || s.DensityPower > 20 {
+			v.fail("scheme", i, "density_power", fmt.Sprintf("must be between 0 and 20, got %v", s.DensityPower), "3 is a common choice")
+		}
+	} else if s.DensityPower != 0 {
+		v.fail("scheme", i, "density_power", "only applies to pattern "+PatternRandom, "remove it")
+	}
+	if len(s.Accelerations) == 0 {
+		v.fail("scheme", i, "accelerations", "missing or empty", "list the acceleration factors R to try, e.g. [1, 2, 3, 4]")
+	}
+	for _, r := range s.Accelerations {
+		switch {
+		case !finite(r) || r < 1:
+			v.fail("scheme", i, "accelerations", fmt.Sprintf("R = %v is below 1", r), "R = full lines / acquired lines, so R ≥ 1")
+		case r > float64(ny):
+			v.fail("scheme", i, "accelerations", fmt.Sprintf("R = %v is above the %d phase-encode lines", r, ny), "R can be at most the number of lines")
+		case s.Pattern == PatternUniform && r != math.Trunc(r):
+			v.fail("scheme", i, "accelerations", fmt.Sprintf("R = %v is not a whole number", r), "pattern "+PatternUniform+" keeps every R-th line; use "+PatternRandom+" for fractional R")
+		case s.Pattern == PatternRandom && int(math.Round(float64(ny)/r)) < s.CalibrationLines:
+			v.fail("scheme", i, "accelerations", fmt.Sprintf("R = %v keeps %d lines, fewer than the %d calibration lines", r, int(math.Round(float64(ny)/r)), s.CalibrationLines),
+				"lower R or calibration_lines")
+		}
+	}
+	if !sort.Float64sAreSorted(s.Accelerations) {
+		sort.Float64s(s.Accelerations)
+	}
+	for j := 1; j < len(s.Accelerations); j++ {
+		if s.Accelerations[j] == s.Accelerations[j-1] {
+			v.fail("scheme", i, "accelerations", fmt.Sprintf("R = %v is listed twice", s.Accelerations[j]), "list each R once")
+		}
+	}
+}
+
+func (v *validator) recon(p *Plan, i int) {
+	r := &p.Recons[i]
+	if r.Method == "" {
+		v.fail("recon", i, "method", "missing", "choose one of: "+strings.Join(methods, ", "))
+		return
+	}
+	if !oneOf(r.Method, methods) {
+		v.fail("recon", i, "method", fmt.Sprintf("unknown method %q", r.Method), "choose one of: "+strings.Join(methods, ", "))
+		return
+	}
+	if r.Label == "" {
+		r.Label = r.Method
+		if r.Method == MethodFISTAWavelet && r.Wavelet != "" {
+			r.Label += " " + r.Wavelet
+		}
+	}
+	for j, o := range p.Recons[:i] {
+		if o.Label == r.Label {
+			v.fail("recon", i, "label", fmt.Sprintf("label %q is used by recon %d too", r.Label, j+1), "give each recon its own label")
+		}
+	}
+	if r.Method == MethodZeroFilled {
+		for _, k := range []struct {
+			set  bool
+			name string
+		}{{r.Wavelet != "", "wavelet"}, {r.Levels != 0, "levels"}, {r.Iterations != 0, "iterations"}, {r.Lambda != 0, "lambda"}, {r.LambdaLook != nil, "lambda_search"}} {
+			if k.set {
+				v.fail("recon", i, k.name, "does not apply to method "+MethodZeroFilled, "remove it")
+			}
+		}
+		return
+	}
+	if r.Wavelet == "" {
+		r.Wavelet = "db4"
+	}
+	if !oneOf(r.Wavelet, wavelets) {
+		v.fail("recon", i, "wavelet", fmt.Sprintf("unknown wavelet %q", r.Wavelet), "choose one of: "+strings.Join(wavelets, ", "))
+	}
+	if r.Levels == 0 {
+		r.Levels = 4
+	}
+	if r.Levels < 1 || r.Levels > 8 {
+		v.fail("recon", i, "levels", fmt.Sprintf("must be between 1 and 8, got %d", r.Levels), "")
+	}
+	for _, n := range []int{p.Object.PhaseLines, p.Object.ReadoutPoints} {
+		if r.Levels >= 1 && r.Levels <= 8 && n%(1<<r.Levels) != 0 {
+			v.fail("recon", i, "levels", fmt.Sprintf("%d levels need a matrix divisible by %d; %d is not", r.Levels, 1<<r.Levels, n),
+				"lower levels or change object.phase_lines / object.readout_points")
+		}
+	}
+	if r.Iterations == 0 {
+		r.Iterations = 60
+	}
+	if r.Iterations < 1 || r.Iterations > 10000 {
+		v.fail("recon", i, "iterations", fmt.Sprintf("must be between 1 and 10000, got %d", r.Iterations), "")
+	}
+	if !finite(r.Lambda) || r.Lambda < 0 {
+		v.fail("recon", i, "lambda", fmt.Sprintf("must be a finite number ≥ 0, got %v", r.Lambda), "leave it out to tune λ on a calibration noise draw")
+	}
+	if r.Lambda > 0 && r.LambdaLook != nil {
+		v.fail("recon", i, "lambda_search", "cannot be combined with a fixed lambda", "keep one of the two")
+	}
+	if r.LambdaLook == nil && r.Lambda == 0 {
+		r.LambdaLook = []float64{1e-4, 1e-1}
+	}
+	if r.LambdaLook != nil {
+		l := r.LambdaLook
+		if len(l) != 2 || !finite(l[0]) || !finite(l[1]) || !(l[0] > 0) || !(l[1] > l[0]) {
+			v.fail("recon", i, "lambda_search", fmt.Sprintf("must be [low, high] with 0 < low < high, got %v", l), "e.g. [1e-4, 1e-1], relative to the largest zero-filled magnitude")
+		}
+	}
+}

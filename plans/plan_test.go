@@ -1,0 +1,159 @@
+package plans
+
+import (
+	"errors"
+	"math"
+	"strings"
+	"testing"
+)
+
+const minimal = `title = "t"
+seed = 7
+repeats = 3
+
+[object]
+phantom = "modified-shepp-logan"
+phase_lines = 64
+readout_points = 64
+fov_mm = 200
+
+[scanner]
+tr_ms = 500
+echo_train = 1
+averages = 1
+reference_snr = 30
+
+[[scheme]]
+pattern = "cartesian-uniform"
+accelerations = [1, 2]
+calibration_lines = 8
+
+[[recon]]
+method = "zero-filled"
+
+[accept]
+metric = "ssim"
+threshold = 0.8
+`
+
+func TestBuiltinPlanIsValid(t *testing.T) {
+	p, err := Parse("builtin", Builtin())
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(p.Schemes) < 2 || len(p.Recons) < 2 {
+		t.Errorf("built-in plan should compare at least two schemes and two methods, has %d and %d", len(p.Schemes), len(p.Recons))
+	}
+}
+
+func TestParseDefaults(t *testing.T) {
+	p, err := Parse("m.toml", []byte(minimal))
+	if err != nil {
+		t.Fatal(err)
+	}
+	if p.Output != "accelplan-out" || p.Schemes[0].Label == "" || p.Recons[0].Label != "zero-filled" {
+		t.Errorf("defaults not filled: output %q, scheme label %q, recon label %q", p.Output, p.Schemes[0].Label, p.Recons[0].Label)
+	}
+}
+
+// TestParseRejects checks that each mistake is refused with the key, the
+// line it is on and a hint.
+func TestParseRejects(t *testing.T) {
+	cases := []struct {
+		name    string
+		from    string // substring of minimal to replace
+		to      string
+		key     string
+		line    int
+		message string
+	}{
+		{"malformed TOML", `title = "t"`, `title = "t`, "", 1, "malformed TOML"},
+		{"unknown key", "averages = 1", "avrages = 1", "scanner.avrages", 14, "unknown key"},
+		{"wrong type", "tr_ms = 500", `tr_ms = "500"`, "scanner.tr_ms", 12, "wrong type"},
+		{"R below 1", "accelerations = [1, 2]", "accelerations = [0.5, 2]", "scheme[1].accelerations", 19, "below 1"},
+		{"R above line count", "accelerations = [1, 2]", "accelerations = [1, 65]", "scheme[1].accelerations", 19, "above the 64"},
+		{"non-integer uniform R", "accelerations = [1, 2]", "accelerations = [1, 2.5]", "scheme[1].accelerations", 19, "whole number"},
+		{"threshold out of range", "threshold = 0.8", "threshold = 1.3", "accept.threshold", 27, "strictly between"},
+		{"unknown metric", `metric = "ssim"`, `metric = "ssmi"`, "accept.metric", 26, "unknown metric"},
+		{"unknown pattern", `pattern = "cartesian-uniform"`, `pattern = "spiralx"`, "scheme[1].pattern", 18, "unknown sampling pattern"},
+		{"unknown method", `method = "zero-filled"`, `method = "magic"`, "recon[1].method", 23, "unknown method"},
+		{"negative TR", "tr_ms = 500", "tr_ms = -5", "scanner.tr_ms", 12, "between 0 and"},
+		{"NaN SNR", "reference_snr = 30", "reference_snr = nan", "scanner.reference_snr", 15, "positive number"},
+		{"calibration larger than matrix", "calibration_lines = 8", "calibration_lines = 80", "scheme[1].calibration_lines", 20, "between 0 and"},
+		{"one repeat", "repeats = 3", "repeats = 1", "repeats", 3, "between 2 and"},
+		{"negative lambda", `method = "zero-filled"`, "method = \"fista-wavelet\"\nlambda = -1", "recon[1].lambda", 24, "finite number"},
+	}
+	for _, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			if !strings.Contains(minimal, c.from) {
+				t.Fatalf("test case does not apply: %q not in plan", c.from)
+			}
+			_, err := Parse("m.toml", []byte(strings.Replace(minimal, c.from, c.to, 1)))
+			var pe *Error
+			if !errors.As(err, &pe) {
+				t.Fatalf("want a plan error, got %v", err)
+			}
+			if pe.Key != c.key || pe.Line != c.line || !strings.Contains(pe.Msg, c.message) {
+				t.Errorf("got key %q line %d msg %q; want key %q line %d msg containing %q", pe.Key, pe.Line, pe.Msg, c.key, c.line, c.message)
+			}
+			if pe.File != "m.toml" || !strings.HasPrefix(err.Error(), "m.toml:") {
+				t.Errorf("message does not name the file: %v", err)
+			}
+		})
+	}
+}
+
+func TestLoadMissingFile(t *testing.T) {
+	_, err := Load("/nonexistent/plan.toml")
+	if err == nil || !strings.Contains(err.Error(), "does not exist") {
+		t.Fatalf("want a does-not-exist error, got %v", err)
+	}
+}
+
+// Scan-time model: handbook formula TR × lines × averages / echo train length
+// (Bernstein et al. 2004), with echo trains rounded up.
+func TestCartesian2DTime(t *testing.T) {
+	cases := []struct {
+		tr              float64
+		lines, etl, avg int
+		want            float64
+	}{
+		{500, 256, 1, 1, 128},   // 0.5 s × 256
+		{4000, 256, 16, 2, 128}, // 4 s × 16 trains × 2
+		{4000, 250, 16, 1, 64},  // 250/16 → 16 trains
+		{2.5, 192, 1, 4, 1.92},
+	}
+	for _, c := range cases {
+		if got := Cartesian2DTime(c.tr, c.lines, c.etl, c.avg); math.Abs(got-c.want) > 1e-12 {
+			t.Errorf("Cartesian2DTime(%v, %d, %d, %d) = %v, want %v", c.tr, c.lines, c.etl, c.avg, got, c.want)
+		}
+	}
+}
+
+// Student-t bound: for x = 1, 2, 3, 4, 5 the mean is 3, s = √2.5 and
+// t(0.95, 4) = 2.131847 (any statistics table), so the one-sided lower bound
+// is 3 − 2.131847·√2.5/√5 = 1.49256.
+func TestSummarize(t *testing.T) {
+	s := Summarize([]float64{1, 2, 3, 4, 5})
+	if s.N != 5 || math.Abs(s.Mean-3) > 1e-12 || math.Abs(s.Std-math.Sqrt(2.5)) > 1e-12 {
+		t.Fatalf("mean/std wrong: %+v", s)
+	}
+	if want := 3 - 2.131847*math.Sqrt(2.5)/math.Sqrt(5); math.Abs(s.Lower-want) > 1e-5 {
+		t.Errorf("lower bound %v, want %v", s.Lower, want)
+	}
+	if math.Abs((s.Upper-3)-(3-s.Lower)) > 1e-12 {
+		t.Errorf("bounds not symmetric: %+v", s)
+	}
+	if one := Summarize([]float64{2}); !math.IsNaN(one.Lower) {
+		t.Errorf("one value must give no bound, got %v", one.Lower)
+	}
+}
+
+func TestGoldenLogFindsMinimum(t *testing.T) {
+	// f has its minimum at λ = 3e-3 in log λ.
+	f := func(l float64) float64 { d := math.Log(l) - math.Log(3e-3); return d * d }
+	got, _ := goldenLog(f, 1e-5, 1, 30)
+	if math.Abs(math.Log(got/3e-3)) > 1e-4 {
+		t.Errorf("minimum at %v, want 3e-3", got)
+	}
+}

@@ -1,0 +1,434 @@
+package plans
+
+import (
+	"context"
+	"fmt"
+	"hash/fnv"
+	"math"
+	"math/rand/v2"
+	"runtime"
+	"sync"
+	"time"
+
+	"accelplan/simulate"
+	"accelplan/simulate/quality"
+	"accelplan/trajectories"
+)
+
+// Candidate is one protocol under study: a scheme at one acceleration, with
+// its sampling and scan time.
+type Candidate struct {
+	Scheme   int     // index into Plan.Schemes
+	Accel    int     // index into the scheme's Accelerations
+	AskedR   float64 // R as written in the plan
+	Sampling trajectories.Sampling
+	ScanTime float64 // seconds
+	MaskSeed uint64
+}
+
+// Key names the candidate for seeds, file names and tables.
+func (c Candidate) Key() string { return fmt.Sprintf("s%d-R%g", c.Scheme+1, c.AskedR) }
+
+// Result is the outcome of one reconstruction of one noise draw.
+type Result struct {
+	Candidate  int    // index into Outcome.Candidates
+	Recon      int    // index into Plan.Recons
+	Repeat     int    // scored draw number, from 0
+	NoiseSeed  uint64 // seed of the noise draw
+	Lambda     float64
+	LambdaRule string
+	Iterations int
+	NRMSE      float64
+	PSNR       float64
+	SSIM       float64
+	Seconds    float64 // wall time of the reconstruction
+}
+
+// Metric returns the named quality figure of r.
+func (r Result) Metric(name string) float64 {
+	switch name {
+	case MetricPSNR:
+		return r.PSNR
+	case MetricNRMSE:
+		return r.NRMSE
+	}
+	return r.SSIM
+}
+
+// HigherIsBetter reports whether larger values of metric mean better images.
+func HigherIsBetter(metric string) bool { return metric != MetricNRMSE }
+
+// Tuning records how λ was fixed for one candidate and method.
+type Tuning struct {
+	Lambda    float64 // relative to the largest zero-filled magnitude
+	Rule      string
+	Score     float64 // acceptance metric on the calibration draw
+	NoiseSeed uint64
+	Evals     int
+}
+
+// Outcome is everything a run produced, in plan order, independent of the
+// number of workers.
+type Outcome struct {
+	Plan       *Plan
+	Sigma      float64 // noise σ per k-space sample and channel
+	Truth      []float64
+	Support    []bool
+	Candidates []Candidate
+	Tunings    [][]Tuning // [candidate][recon]
+	Results    []Result   // ordered by candidate, recon, repeat
+	// Images holds the magnitude reconstruction of the first scored draw,
+	// [candidate][recon].
+	Images  [][][]float64
+	Elapsed time.Duration
+}
+
+// Options tune a run without changing its results.
+type Options struct {
+	Workers  int                           // 0 means all cores
+	Progress func(done, total int)         // called after every finished job; may be nil
+	Log      func(format string, a ...any) // optional notes
+}
+
+// seedFor derives a reproducible seed from the plan seed and a key.
+func seedFor(plan uint64, key string) uint64 {
+	h := fnv.New64a()
+	fmt.Fprintf(h, "%d|%s", plan, key)
+	z := h.Sum64() + 0x9e3779b97f4a7c15
+	// splitmix64 finaliser, so nearby keys give unrelated seeds.
+	z = (z ^ (z >> 30)) * 0xbf58476d1ce4e5b9
+	z = (z ^ (z >> 27)) * 0x94d049bb133111eb
+	return z ^ (z >> 31)
+}
+
+// Candidates builds the samplings of every scheme and acceleration of p.
+func Candidates(p *Plan) ([]Candidate, error) {
+	ny, nx := p.Object.PhaseLines, p.Object.ReadoutPoints
+	var out []Candidate
+	for si, s := range p.Schemes {
+		for ai, r := range s.Accelerations {
+			c := Candidate{Scheme: si, Accel: ai, AskedR: r}
+			c.MaskSeed = seedFor(p.Seed, "mask|"+c.Key())
+			var err error
+			switch s.Pattern {
+			case PatternUniform:
+				c.Sampling, err = trajectories.CartesianUniform(ny, nx, int(r), s.CalibrationLines)
+			case PatternRandom:
+				var lines int
+				lines, err = trajectories.LinesForR(ny, r)
+				if err == nil {
+					c.Sampling, err = trajectories.CartesianRandom(ny, nx, lines, s.CalibrationLines, s.DensityPower, c.MaskSeed)
+				}
+			default:
+				err = fmt.Errorf("pattern %q has no sampling yet", s.Pattern)
+			}
+			if err != nil {
+				return nil, &Error{File: p.Source, Line: findKeyIn(string(p.Text), "scheme", si, "accelerations"),
+					Key: fmt.Sprintf("scheme[%d].accelerations", si+1), Msg: fmt.Sprintf("R = %g: %v", r, err)}
+			}
+			c.ScanTime = Cartesian2DTime(p.Scanner.TRms, c.Sampling.Shots, p.Scanner.EchoTrain, p.Scanner.Averages)
+			out = append(out, c)
+		}
+	}
+	return out, nil
+}
+
+// job is one unit of work on the pool: a λ tuning (repeat < 0) or a scored
+// reconstruction.
+type job struct {
+	cand, recon, repeat int
+}
+
+// Run simulates, reconstructs and scores every point of p.
+func Run(ctx context.Context, p *Plan, opt Options) (*Outcome, error) {
+	start := time.Now()
+	cands, err := Candidates(p)
+	if err != nil {
+		return nil, err
+	}
+	ny, nx := p.Object.PhaseLines, p.Object.ReadoutPoints
+	ph := simulate.ModifiedSheppLogan()
+	o := &Outcome{Plan: p, Candidates: cands}
+	o.Truth = ph.Rasterize(nx, ny)
+	o.Support = ph.Support(nx, ny)
+	o.Sigma, err = simulate.NoiseSigma(o.Truth, o.Support, p.Scanner.ReferenceSNR)
+	if err != nil {
+		return nil, err
+	}
+	// The noiseless spectrum on the whole centred grid, drawn from the
+	// analytic phantom once and shared read-only by every worker.
+	spectrum := simulate.CartesianSpectrum(ph, nx, ny)
+
+	nr := len(p.Recons)
+	o.Tunings = make([][]Tuning, len(cands))
+	o.Images = make([][][]float64, len(cands))
+	for i := range cands {
+		o.Tunings[i] = make([]Tuning, nr)
+		o.Images[i] = make([][]float64, nr)
+	}
+	o.Results = make([]Result, len(cands)*nr*p.Repeats)
+
+	var tune, score []job
+	for ci := range cands {
+		for ri := range p.Recons {
+			if needsTuning(p.Recons[ri]) {
+				tune = append(tune, job{ci, ri, -1})
+			}
+			for rep := 0; rep < p.Repeats; rep++ {
+				score = append(score, job{ci, ri, rep})
+			}
+		}
+	}
+	total := len(tune) + len(score)
+	var mu sync.Mutex
+	done := 0
+	tick := func() {
+		mu.Lock()
+		done++
+		d := done
+		mu.Unlock()
+		if opt.Progress != nil {
+			opt.Progress(d, total)
+		}
+	}
+	workers := opt.Workers
+	if workers <= 0 {
+		workers = runtime.GOMAXPROCS(0)
+	}
+	env := &runEnv{plan: p, out: o, spectrum: spectrum, ny: ny, nx: nx}
+	for _, stage := range [][]job{tune, score} {
+		if err := pool(ctx, workers, stage, env, tick); err != nil {
+			return nil, err
+		}
+	}
+	o.Elapsed = time.Since(start)
+	return o, nil
+}
+
+func needsTuning(r Recon) bool { return r.Method != MethodZeroFilled && r.Lambda == 0 }
+
+// pool runs jobs on workers goroutines, each with its own scratch. Results
+// land in slots fixed by the job, so the order of completion does not matter.
+func pool(ctx context.Context, workers int, jobs []job, env *runEnv, tick func()) error {
+	if len(jobs) == 0 {
+		return nil
+	}
+	ctx, cancel := context.WithCancel(ctx)
+	defer cancel()
+	next := make(chan job)
+	errs := make(chan error, workers)
+	var wg sync.WaitGroup
+	for w := 0; w < workers; w++ {
+		wg.Add(1)
+		go func() {
+			defer wg.Done()
+			ws, err := newWorkerState(env)
+			if err != nil {
+				errs <- err
+				cancel()
+				return
+			}
+			for j := range next {
+				if err := ws.do(j); err != nil {
+					errs <- err
+					cancel()
+					return
+				}
+				tick()
+			}
+		}()
+	}
+	var err error
+feed:
+	for _, j := range jobs {
+		select {
+		case next <- j:
+		case <-ctx.Done():
+			break feed
+		}
+	}
+	close(next)
+	wg.Wait()
+	select {
+	case err = <-errs:
+	default:
+		err = ctx.Err()
+	}
+	return err
+}
+
+// runEnv is what every worker reads; only the slots a job owns are written.
+type runEnv struct {
+	plan     *Plan
+	out      *Outcome
+	spectrum []complex128
+	ny, nx   int
+}
+
+// workerState holds one worker's operators and buffers, built once per
+// candidate and reused across its jobs.
+type workerState struct {
+	env     *runEnv
+	ops     map[int]*simulate.Cartesian
+	clean   map[int][]complex128 // noiseless data per candidate
+	mag     []float64
+	ssim    *quality.SSIMPlan
+	solvers map[int]*solver // per recon index
+}
+
+func newWorkerState(env *runEnv) (*workerState, error) {
+	const dataRange = 1 // the modified Shepp-Logan phantom spans [0, 1]
+	ssim, err := quality.NewSSIMPlan(env.ny, env.nx, dataRange)
+	if err != nil {
+		return nil, err
+	}
+	return &workerState{env: env, ops: map[int]*simulate.Cartesian{}, clean: map[int][]complex128{},
+		mag: make([]float64, env.ny*env.nx), ssim: ssim, solvers: map[int]*solver{}}, nil
+}
+
+func (w *workerState) operator(ci int) (*simulate.Cartesian, []complex128, error) {
+	if op, ok := w.ops[ci]; ok {
+		return op, w.clean[ci], nil
+	}
+	s := w.env.out.Candidates[ci].Sampling
+	op, err := simulate.NewCartesian(w.env.ny, w.env.nx, s.Mask)
+	if err != nil {
+		return nil, nil, err
+	}
+	clean := make([]complex128, op.DataLen())
+	op.Gather(clean, w.env.spectrum)
+	w.ops[ci], w.clean[ci] = op, clean
+	return op, clean, nil
+}
+
+// draw returns noisy data for the candidate and the given draw key.
+func (w *workerState) draw(ci int, key string) (*simulate.Cartesian, []complex128, uint64, error) {
+	op, clean, err := w.operator(ci)
+	if err != nil {
+		return nil, nil, 0, err
+	}
+	seed := seedFor(w.env.plan.Seed, "noise|"+w.env.out.Candidates[ci].Key()+"|"+key)
+	rng := rand.New(rand.NewPCG(seed, seed^0x5851f42d4c957f2d))
+	y := make([]complex128, len(clean))
+	copy(y, clean)
+	simulate.AddNoise(y, w.env.out.Sigma, rng)
+	return op, y, seed, nil
+}
+
+func (w *workerState) do(j job) error {
+	p := w.env.plan
+	rc := p.Recons[j.recon]
+	if j.repeat < 0 {
+		return w.tune(j, rc)
+	}
+	// The same noise draw serves every method of a candidate, so methods are
+	// compared on paired data.
+	op, y, seed, err := w.draw(j.cand, fmt.Sprintf("scored-%d", j.repeat))
+	if err != nil {
+		return err
+	}
+	lambda, rule := rc.Lambda, "fixed in the plan"
+	if needsTuning(rc) {
+		t := w.env.out.Tunings[j.cand][j.recon]
+		lambda, rule = t.Lambda, t.Rule
+	}
+	if rc.Method == MethodZeroFilled {
+		lambda, rule = 0, "none"
+	}
+	t0 := time.Now()
+	img, iters, err := w.reconstruct(j.recon, op, y, lambda)
+	if err != nil {
+		return err
+	}
+	sec := time.Since(t0).Seconds()
+	simulate.Magnitude(w.mag, img)
+	r := Result{Candidate: j.cand, Recon: j.recon, Repeat: j.repeat, NoiseSeed: seed,
+		Lambda: lambda, LambdaRule: rule, Iterations: iters, Seconds: sec}
+	if r.NRMSE, r.PSNR, r.SSIM, err = w.score(w.mag); err != nil {
+		return err
+	}
+	idx := (j.cand*len(p.Recons)+j.recon)*p.Repeats + j.repeat
+	w.env.out.Results[idx] = r
+	if j.repeat == 0 {
+		w.env.out.Images[j.cand][j.recon] = append([]float64(nil), w.mag...)
+	}
+	return nil
+}
+
+// score returns NRMSE, PSNR and SSIM of a magnitude image inside the support.
+// SSIM is averaged over the support pixels (AverageAll), the others over the
+// same pixels.
+func (w *workerState) score(mag []float64) (nrmse, psnr, ssim float64, err error) {
+	o := w.env.out
+	const dataRange = 1 // the modified Shepp-Logan phantom spans [0, 1]
+	nrmse = quality.NRMSE(mag, o.Truth, o.Support)
+	psnr = quality.PSNR(mag, o.Truth, o.Support, dataRange)
+	ssim, err = w.ssim.Mean(mag, o.Truth, o.Support, quality.AverageAll)
+	return
+}
+
+// tune fixes λ for one candidate and method on a calibration noise draw that
+// is never scored, by a golden-section search over log λ that optimises the
+// plan's acceptance metric.
+func (w *workerState) tune(j job, rc Recon) error {
+	p := w.env.plan
+	op, y, seed, err := w.draw(j.cand, "calibration")
+	if err != nil {
+		return err
+	}
+	metric := p.Accept.Metric
+	sign := -1.0
+	if !HigherIsBetter(metric) {
+		sign = 1
+	}
+	var firstErr error
+	evals := 0
+	cost := func(lambda float64) float64 {
+		evals++
+		img, _, err := w.reconstruct(j.recon, op, y, lambda)
+		if err != nil {
+			if firstErr == nil {
+				firstErr = err
+			}
+			return math.Inf(1)
+		}
+		simulate.Magnitude(w.mag, img)
+		n, ps, ss, err := w.score(w.mag)
+		if err != nil && firstErr == nil {
+			firstErr = err
+		}
+		v := Result{NRMSE: n, PSNR: ps, SSIM: ss}.Metric(metric)
+		return sign * v
+	}
+	best, bestCost := goldenLog(cost, rc.LambdaLook[0], rc.LambdaLook[1], 12)
+	if firstErr != nil {
+		return firstErr
+	}
+	w.env.out.Tunings[j.cand][j.recon] = Tuning{Lambda: best, Rule: "tuned on a calibration noise draw (" + metric + ")",
+		Score: sign * bestCost, NoiseSeed: seed, Evals: evals}
+	return nil
+}
+
+// goldenLog minimises f over [lo, hi] in log λ by golden-section search with
+// evals evaluations of the interior (Kiefer 1953; any numerical-methods text).
+func goldenLog(f func(float64) float64, lo, hi float64, evals int) (best, fbest float64) {
+	a, b := math.Log(lo), math.Log(hi)
+	g := (math.Sqrt(5) - 1) / 2
+	c, d := b-g*(b-a), a+g*(b-a)
+	fc, fd := f(math.Exp(c)), f(math.Exp(d))
+	for i := 2; i < evals; i++ {
+		if fc <= fd {
+			b, d, fd = d, c, fc
+			c = b - g*(b-a)
+			fc = f(math.Exp(c))
+		} else {
+			a, c, fc = c, d, fd
+			d = a + g*(b-a)
+			fd = f(math.Exp(d))
+		}
+	}
+	if fc <= fd {
+		return math.Exp(c), fc
+	}
+	return math.Exp(d), fd
+}
