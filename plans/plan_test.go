@@ -67,7 +67,7 @@ func TestParseRejects(t *testing.T) {
 		line    int
 		message string
 	}{
-		{"malformed TOML", `title = "t"`, `title = "t`, "", 1, "malformed TOML"},
+		{"malformed TOML", `title = "t"`, `title = "t`, "title", 1, "malformed TOML"},
 		{"unknown key", "averages = 1", "avrages = 1", "scanner.avrages", 14, "unknown key"},
 		{"wrong type", "tr_ms = 500", `tr_ms = "500"`, "scanner.tr_ms", 12, "wrong type"},
 		{"R below 1", "accelerations = [1, 2]", "accelerations = [0.5, 2]", "scheme[1].accelerations", 19, "below 1"},

@@ -1,0 +1,131 @@
+package plans
+
+import (
+	"context"
+	"reflect"
+	"strings"
+	"testing"
+)
+
+// smallPlan is a fast plan with both schemes and both methods.
+const smallPlan = `title = "small"
+seed = 99
+repeats = 2
+
+[object]
+phase_lines = 64
+readout_points = 64
+fov_mm = 200
+
+[scanner]
+tr_ms = 500
+reference_snr = 40
+
+[[scheme]]
+pattern = "cartesian-uniform"
+accelerations = [1, 2]
+calibration_lines = 8
+
+[[scheme]]
+pattern = "cartesian-random"
+accelerations = [2, 3]
+calibration_lines = 8
+
+[[recon]]
+method = "zero-filled"
+
+[[recon]]
+method = "fista-wavelet"
+wavelet = "db2"
+levels = 3
+iterations = 15
+
+[accept]
+metric = "ssim"
+threshold = 0.5
+`
+
+func runSmall(t *testing.T, workers int) *Outcome {
+	t.Helper()
+	p, err := Parse("small.toml", []byte(smallPlan))
+	if err != nil {
+		t.Fatal(err)
+	}
+	o, err := Run(context.Background(), p, Options{Workers: workers})
+	if err != nil {
+		t.Fatal(err)
+	}
+	return o
+}
+
+// Every draw is seeded from the plan and the point, and results land in
+// fixed slots, so the worker count cannot change any number.
+func TestRunIndependentOfWorkers(t *testing.T) {
+	a := runSmall(t, 1)
+	b := runSmall(t, 3)
+	strip := func(o *Outcome) []Result {
+		r := append([]Result(nil), o.Results...)
+		for i := range r {
+			r[i].Seconds = 0
+		}
+		return r
+	}
+	if !reflect.DeepEqual(strip(a), strip(b)) {
+		t.Fatal("results differ between 1 and 3 workers")
+	}
+	if !reflect.DeepEqual(a.Tunings, b.Tunings) || !reflect.DeepEqual(a.Images, b.Images) {
+		t.Fatal("tunings or images differ between 1 and 3 workers")
+	}
+}
+
+func TestRunProducesSensibleQuality(t *testing.T) {
+	o := runSmall(t, 2)
+	an := Analyse(o)
+	if len(an.Rows) != 4*2 {
+		t.Fatalf("%d rows, want 8", len(an.Rows))
+	}
+	for _, r := range an.Rows {
+		if !(r.SSIM.Mean > 0 && r.SSIM.Mean <= 1) || !(r.NRMSE.Mean > 0) || r.SSIM.N != 2 {
+			t.Errorf("implausible row %+v", r)
+		}
+		if strings.Contains(r.Method, "fista") && r.LambdaRule == "" {
+			t.Errorf("row %s/%s does not say how λ was chosen", r.Scheme, r.Method)
+		}
+	}
+	// Fully sampled zero-filled is the unitary inverse: its NRMSE is set
+	// by noise alone and must beat every undersampled zero-filled point.
+	var full float64
+	for _, r := range an.Rows {
+		if r.R == 1 && r.Method == "zero-filled" {
+			full = r.NRMSE.Mean
+		}
+	}
+	for _, r := range an.Rows {
+		if r.R > 1 && r.Method == "zero-filled" && r.NRMSE.Mean <= full {
+			t.Errorf("R = %.2f zero-filled NRMSE %.4f not worse than fully sampled %.4f", r.R, r.NRMSE.Mean, full)
+		}
+	}
+}
+
+func TestRecommendationPicksShortestPassing(t *testing.T) {
+	mk := func(time, lower float64) Row {
+		return Row{ScanTime: time, SSIM: Summary{N: 3, Mean: lower + 0.01, Lower: lower}}
+	}
+	a := &Analysis{Metric: MetricSSIM, Threshold: 0.9}
+	a.Rows = []Row{mk(60, 0.95), mk(30, 0.91), mk(20, 0.89), mk(40, 0.97)}
+	for i := range a.Rows {
+		a.Rows[i].Meets = meets(a.Rows[i].Bound(MetricSSIM), 0.9, MetricSSIM)
+	}
+	idx := []int{0, 1, 2, 3}
+	sortByTime(idx, a.Rows)
+	if got := a.pick(idx); got != 1 {
+		t.Errorf("picked row %d, want 1 (30 s, bound 0.91)", got)
+	}
+	a.Threshold = 0.99
+	for i := range a.Rows {
+		a.Rows[i].Meets = meets(a.Rows[i].Bound(MetricSSIM), 0.99, MetricSSIM)
+	}
+	if got := a.pick(idx); got != -1 {
+		t.Errorf("picked row %d though none meets 0.99", got)
+	}
+}
