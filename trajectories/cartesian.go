@@ -220,37 +220,50 @@ func CartesianRandom(ny, nx, lines, calib int, power float64, seed uint64) (Samp
 			cand = append(cand, m)
 		}
 	}
-	need := lines - calib
-	if need > 0 {
-		rng.Shuffle(len(cand), func(i, j int) { cand[i], cand[j] = cand[j], cand[i] })
-		u := rng.Float64()
-		got := 0
-		cum := 0.0
-		prev := 0.0 // floor(cum − u + 1) before this row
-		for _, m := range cand {
-			cum += p[m]
-			cnt := math.Floor(cum - u + 1)
-			if cnt > prev && got < need {
-				acq[m] = true
-				got++
-			}
-			prev = cnt
+	for _, m := range drawSystematic(p, cand, lines-calib, rng) {
+		acq[m] = true
+	}
+	return newCartesian2D(SchemeCartesianRandom, ny, nx, calib, acq), nil
+}
+
+// drawSystematic draws exactly need distinct indices from cand, each index i
+// included with probability p[i] (the p[i] over cand must sum to need and lie
+// in [0, 1]), by randomised systematic sampling with unequal probabilities
+// (Hartley HO, Rao JNK, Ann Math Stat 1962;33:350-374): cand is put in a
+// random order and an index is taken where the running sum of probabilities
+// crosses u, u+1, u+2, … for one uniform u in [0, 1). cand is reordered.
+func drawSystematic(p []float64, cand []int, need int, rng *rand.Rand) []int {
+	if need <= 0 || len(cand) == 0 {
+		return nil
+	}
+	rng.Shuffle(len(cand), func(i, j int) { cand[i], cand[j] = cand[j], cand[i] })
+	u := rng.Float64()
+	chosen := make([]int, 0, need)
+	taken := make(map[int]bool, need)
+	cum, prev := 0.0, 0.0 // prev = floor(cum − u + 1) before this index
+	for _, m := range cand {
+		cum += p[m]
+		cnt := math.Floor(cum - u + 1)
+		if cnt > prev && len(chosen) < need {
+			chosen = append(chosen, m)
+			taken[m] = true
 		}
-		// Rounding in the running sum can leave the count one off; settle it
-		// with the most (or least) probable rows so the count is exact.
-		if got != need {
-			byP := slices.Clone(cand)
-			sort.SliceStable(byP, func(a, b int) bool { return p[byP[a]] > p[byP[b]] })
-			for _, m := range byP {
-				if got >= need {
-					break
-				}
-				if !acq[m] {
-					acq[m] = true
-					got++
-				}
+		prev = cnt
+	}
+	// Rounding in the running sum can leave the count one short; settle it
+	// with the most probable indices not yet taken so the count is exact.
+	if len(chosen) < need {
+		byP := slices.Clone(cand)
+		sort.SliceStable(byP, func(a, b int) bool { return p[byP[a]] > p[byP[b]] })
+		for _, m := range byP {
+			if len(chosen) >= need {
+				break
+			}
+			if !taken[m] {
+				chosen = append(chosen, m)
+				taken[m] = true
 			}
 		}
 	}
-	return newCartesian2D(SchemeCartesianRandom, ny, nx, calib, acq), nil
+	return chosen
 }

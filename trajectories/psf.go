@@ -59,13 +59,19 @@ func MaskPSF(mask []bool, ny, nx int) ([]complex128, error) {
 	return out, nil
 }
 
-// PSF returns the point-spread function of s (see MaskPSF for Cartesian
-// families), scaled so that full sampling gives a unit impulse.
+// PSF returns the point-spread function of a Cartesian sampling (see MaskPSF),
+// scaled so that full sampling gives a unit impulse: ny×nx for
+// FamilyCartesian2D, the nz×ny (z rows, y columns) phase-encode plane for
+// FamilyCartesian3D (the readout contributes a unit impulse along x).
 func (s Sampling) PSF() ([]complex128, error) {
-	if s.Mask == nil {
+	switch {
+	case s.Mask == nil:
 		return nil, errors.New("trajectories: PSF: sampling " + s.Scheme + " has no Cartesian mask")
+	case s.Family == FamilyCartesian3D:
+		return MaskPSF(s.Mask, s.Nz, s.Ny)
+	default:
+		return MaskPSF(s.Mask, s.Ny, s.Nx)
 	}
-	return MaskPSF(s.Mask, s.Ny, s.Nx)
 }
 
 // SideLobeToPeak returns the largest PSF magnitude away from the centre pixel

@@ -9,6 +9,10 @@ const (
 	// line (one ky row, readout along kx fully sampled); the reference is ny
 	// lines.
 	FamilyCartesian2D = "cartesian-2d"
+	// FamilyCartesian3D is a 3D Cartesian scan: a shot is one readout line
+	// along kx at one (ky, kz) phase-encode point; the reference is ny·nz
+	// points (the full rectangle, even when corners are cut).
+	FamilyCartesian3D = "cartesian-3d"
 )
 
 // Scheme names of the 2D Cartesian constructors.
@@ -27,13 +31,21 @@ type Sampling struct {
 	Family string
 	// Dim is the number of spatial dimensions of the reconstructed grid.
 	Dim int
-	// Nx, Ny are the grid size (columns, rows).
+	// Nx, Ny are the grid size (columns, rows). For 3D Cartesian, Nx is the
+	// readout length, Ny and Nz the phase-encode sizes.
 	Nx, Ny int
-	// Mask is ny*nx, row-major, on the centred k-space grid: row m is
-	// ky = m − ny/2, column n is kx = n − nx/2. Nil for non-Cartesian
-	// families.
+	// Nz is the number of partitions of a 3D grid (0 for 2D).
+	Nz int
+	// Mask is the Cartesian sampling mask on the centred grid.
+	// FamilyCartesian2D: ny*nx, row-major; row m is ky = m − ny/2, column n
+	// is kx = n − nx/2.
+	// FamilyCartesian3D: the nz*ny phase-encode plane, row-major; row p is
+	// kz = p − nz/2, column m is ky = m − ny/2; every true entry is one
+	// readout line of Nx samples (kx fully sampled).
+	// Nil for non-Cartesian families.
 	Mask []bool
-	// Lines lists the acquired phase-encode rows (indices m), ascending.
+	// Lines lists the acquired phase-encode rows (indices m), ascending
+	// (FamilyCartesian2D only).
 	Lines []int
 	// Shots is the number of shots acquired (lines for 2D Cartesian).
 	Shots int
@@ -43,8 +55,15 @@ type Sampling struct {
 	// R is the achieved acceleration FullShots / Shots, as achieved rather
 	// than as requested.
 	R float64
-	// Calib is the number of fully sampled central calibration lines.
+	// Calib is the number of fully sampled central calibration lines (2D) or
+	// the ky extent of the calibration box (3D).
 	Calib int
+	// CalibZ is the kz extent of the 3D calibration box.
+	CalibZ int
+	// DiscScale and DiscGrowth are the λ and growth of a Poisson-disc
+	// sampling: samples keep PoissonDiscRadius(DiscScale, DiscGrowth, ρ)
+	// apart. Zero for other schemes.
+	DiscScale, DiscGrowth float64
 }
 
 // SampledFraction returns the fraction of the grid's k-space samples that the
