@@ -34,12 +34,14 @@ import (
 type Transform struct {
 	ny, nx, levels int
 	fb             FilterBank
-	// Reversed analysis taps: rlo[m] = DecLo[L−1−m], the form in which the
-	// inner loops read them.
-	rlo, rhi []float64
-	scratch  []complex128 // ny×nx
-	ext      []float64    // one extended row: 2·(max(nx, ny)+L) floats
-	ext2     []float64    // second extended row for the synthesis
+	// Taps in the order the kernels read them (see analyse and
+	// synthesise): anaLo[m] = DecLo[L−1−m], anaHi likewise;
+	// synLo[2j], synLo[2j+1] = anaLo[2(P−j)], anaHi[2(P−j)] and
+	// synHi[2j], synHi[2j+1] = anaLo[2(P−j)+1], anaHi[2(P−j)+1], P = L/2 − 1.
+	anaLo, anaHi, synLo, synHi []float64
+	scratch                    []complex128 // ny×nx
+	buf                        [4][]float64 // polyphase rows, 2·(max(ny,nx)/2+L) floats each
+	srcs                       [][]float64  // the L source vectors of one output pair
 }
 
 // Subband describes one block of the coefficient array.
@@ -124,21 +126,30 @@ func New(ny, nx, levels int, name string) (*Transform, error) {
 			levels, fb.Name, L, ny, nx, m, L-1)
 	}
 	t := &Transform{ny: ny, nx: nx, levels: levels, fb: fb}
-	t.rlo = make([]float64, L)
-	t.rhi = make([]float64, L)
+	t.anaLo = make([]float64, L)
+	t.anaHi = make([]float64, L)
 	for m := range L {
-		t.rlo[m] = fb.DecLo[L-1-m]
-		t.rhi[m] = fb.DecHi[L-1-m]
+		t.anaLo[m] = fb.DecLo[L-1-m]
+		t.anaHi[m] = fb.DecHi[L-1-m]
+	}
+	P := L/2 - 1
+	t.synLo = make([]float64, L)
+	t.synHi = make([]float64, L)
+	for j := range L / 2 {
+		t.synLo[2*j], t.synLo[2*j+1] = t.anaLo[2*(P-j)], t.anaHi[2*(P-j)]
+		t.synHi[2*j], t.synHi[2*j+1] = t.anaLo[2*(P-j)+1], t.anaHi[2*(P-j)+1]
 	}
 	t.alloc()
 	return t, nil
 }
 
 func (t *Transform) alloc() {
-	n := max(t.nx, t.ny) + t.fb.Len()
+	n := 2 * (max(t.nx, t.ny)/2 + t.fb.Len())
 	t.scratch = make([]complex128, t.ny*t.nx)
-	t.ext = make([]float64, 2*n)
-	t.ext2 = make([]float64, 2*n)
+	for i := range t.buf {
+		t.buf[i] = make([]float64, n)
+	}
+	t.srcs = make([][]float64, t.fb.Len())
 }
 
 // Clone returns an independent plan for the same transform, with its own
@@ -243,182 +254,216 @@ func (t *Transform) Inverse(dst, src []complex128) {
 	}
 }
 
+// The four passes below share one structure. Every output pair (lo, hi) is
+// a combination Σ_i a[i]·s_i, Σ_i b[i]·s_i of L source vectors s_i taken
+// from the input at shifts that depend on the pass, where a vector is a
+// whole image row (column passes) or a polyphase component of one row (row
+// passes). combine evaluates it with unit-stride loops.
+//
+// Analysis (Mallat 1989): a[k] = Σ_m anaLo[m]·x[(2k + base + m) mod n],
+// d[k] likewise with anaHi, base = 1 − L/2 (the offset of the periodization
+// mode, checked against PyWavelets).
+//
+// Synthesis is the adjoint: with n = 2Q + base, the outputs x[n] and x[n+1]
+// both read a[Q−P+j] and d[Q−P+j], j = 0 … P, with the even taps and the odd
+// taps respectively, which is what synLo and synHi hold.
+
 // analyseColumns filters along y (down each column) the top-left h×w block
 // of src into dst: low-pass rows to [0,h/2), high-pass rows to [h/2,h).
 // Row r of the block is floats [2·r·nx, 2·(r·nx+w)).
 func (t *Transform) analyseColumns(dst, src []float64, h, w int) {
-	L := len(t.rlo)
+	L := len(t.anaLo)
 	stride := 2 * t.nx
 	ww := 2 * w
 	half := h / 2
-	// a[k] = Σ_m rlo[m]·x[(2k + 1 − L/2 + m) mod h]
 	base := 1 - L/2
+	srcs := t.srcs
 	for k := range half {
-		lo := dst[k*stride : k*stride+ww]
-		hi := dst[(k+half)*stride : (k+half)*stride+ww]
-		m := 0
-		for ; m+1 < L; m += 2 {
-			r0 := mod(2*k+base+m, h)
-			r1 := mod(2*k+base+m+1, h)
-			s0 := src[r0*stride : r0*stride+ww]
-			s1 := src[r1*stride : r1*stride+ww]
-			a0, a1 := t.rlo[m], t.rlo[m+1]
-			b0, b1 := t.rhi[m], t.rhi[m+1]
-			if m == 0 {
-				axpy2Set(lo, hi, s0, s1, a0, a1, b0, b1)
-			} else {
-				axpy2(lo, hi, s0, s1, a0, a1, b0, b1)
-			}
+		for m := range L {
+			r := mod(2*k+base+m, h)
+			srcs[m] = src[r*stride : r*stride+ww]
 		}
-	}
-}
-
-// axpy2Set sets lo = a0·s0 + a1·s1 and hi = b0·s0 + b1·s1.
-func axpy2Set(lo, hi, s0, s1 []float64, a0, a1, b0, b1 float64) {
-	hi = hi[:len(lo)]
-	s0 = s0[:len(lo)]
-	s1 = s1[:len(lo)]
-	for c := range lo {
-		v0, v1 := s0[c], s1[c]
-		lo[c] = a0*v0 + a1*v1
-		hi[c] = b0*v0 + b1*v1
-	}
-}
-
-// axpy2 adds a0·s0 + a1·s1 to lo and b0·s0 + b1·s1 to hi.
-func axpy2(lo, hi, s0, s1 []float64, a0, a1, b0, b1 float64) {
-	hi = hi[:len(lo)]
-	s0 = s0[:len(lo)]
-	s1 = s1[:len(lo)]
-	for c := range lo {
-		v0, v1 := s0[c], s1[c]
-		lo[c] += a0*v0 + a1*v1
-		hi[c] += b0*v0 + b1*v1
+		combine(dst[k*stride:k*stride+ww], dst[(k+half)*stride:(k+half)*stride+ww], srcs, t.anaLo, t.anaHi)
 	}
 }
 
 // analyseRows filters along x each of the first h rows (first w columns) of
 // src into dst: low-pass to columns [0,w/2), high-pass to [w/2,w).
 func (t *Transform) analyseRows(dst, src []float64, h, w int) {
-	L := len(t.rlo)
+	L := len(t.anaLo)
 	stride := 2 * t.nx
 	half := w / 2
 	base := 1 - L/2
-	ext := t.ext[:2*(w+L)]
-	rlo, rhi := t.rlo, t.rhi
+	n := half + L/2 - 1 // polyphase samples needed
+	ee := t.buf[0][:2*n]
+	eo := t.buf[1][:2*n]
+	srcs := t.srcs
+	for m := range L {
+		if m%2 == 0 {
+			srcs[m] = ee[m : m+w]
+		} else {
+			srcs[m] = eo[m-1 : m-1+w]
+		}
+	}
+	e0 := 2 * mod(base, w)
 	for r := range h {
 		row := src[r*stride : r*stride+2*w]
-		// ext[i] = x[(base + i) mod w], i = 0 … w+L−2
-		for i := 0; i < w+L-1; i++ {
-			j := 2 * mod(base+i, w)
-			ext[2*i] = row[j]
-			ext[2*i+1] = row[j+1]
+		// ee[j] = x[(base + 2j) mod w], eo[j] = x[(base + 2j + 1) mod w]
+		e := e0
+		for j := range n {
+			o := e + 2
+			if o == 2*w {
+				o = 0
+			}
+			ee[2*j], ee[2*j+1] = row[e], row[e+1]
+			eo[2*j], eo[2*j+1] = row[o], row[o+1]
+			e = o + 2
+			if e == 2*w {
+				e = 0
+			}
 		}
 		out := dst[r*stride : r*stride+2*w]
-		for k := range half {
-			e := ext[4*k : 4*k+2*L]
-			var lr, li, hr, hi float64
-			for m := range L {
-				er, ei := e[2*m], e[2*m+1]
-				a, b := rlo[m], rhi[m]
-				lr += a * er
-				li += a * ei
-				hr += b * er
-				hi += b * ei
-			}
-			out[2*k] = lr
-			out[2*k+1] = li
-			out[2*(k+half)] = hr
-			out[2*(k+half)+1] = hi
-		}
+		combine(out[:w], out[w:2*w], srcs, t.anaLo, t.anaHi)
 	}
 }
 
 // synthesiseRows inverts analyseRows on the first h rows of src into dst.
-//
-// The analysis is a[k] = Σ_m rlo[m]·x[(2k + base + m) mod w]; its adjoint is
-// x[n] = Σ_{m ≡ n−base (mod 2)} rlo[m]·a[(n − base − m)/2] + rhi[m]·d[…].
 func (t *Transform) synthesiseRows(dst, src []float64, h, w int) {
-	L := len(t.rlo)
+	L := len(t.anaLo)
 	stride := 2 * t.nx
 	half := w / 2
 	base := 1 - L/2
-	P := L/2 - 1 // how far the taps reach back in a and d
-	ea := t.ext[:2*(half+L)]
-	ed := t.ext2[:2*(half+L)]
-	rlo, rhi := t.rlo, t.rhi
+	P := L/2 - 1
+	n := half + P
+	ea := t.buf[0][:2*n]
+	ed := t.buf[1][:2*n]
+	xe := t.buf[2][:w]
+	xo := t.buf[3][:w]
+	srcs := t.srcs
+	for j := range L / 2 {
+		srcs[2*j] = ea[2*j : 2*j+w]
+		srcs[2*j+1] = ed[2*j : 2*j+w]
+	}
+	s := mod(base, w) // column of the output of Q = 0
 	for r := range h {
 		row := src[r*stride : r*stride+2*w]
-		// ea[q+P] = a[q mod half] for q = −P … half+P
-		for q := -P; q <= half+P; q++ {
-			j := 2 * mod(q, half)
-			ea[2*(q+P)] = row[j]
-			ea[2*(q+P)+1] = row[j+1]
-			ed[2*(q+P)] = row[2*half+j]
-			ed[2*(q+P)+1] = row[2*half+j+1]
-		}
-		out := dst[r*stride : r*stride+2*w]
-		for n := range w {
-			np := n - base // ≥ 0 since base ≤ 0
-			par := np & 1
-			Q := np >> 1 // q of the first tap (m = par)
-			var xr, xi float64
-			for i := 0; i < L/2; i++ {
-				m := par + 2*i
-				q := Q - i + P // index into ea/ed, ≥ 0
-				a, b := rlo[m], rhi[m]
-				xr += a*ea[2*q] + b*ed[2*q]
-				xi += a*ea[2*q+1] + b*ed[2*q+1]
+		// ea[q+P] = a[q mod half], ed likewise, q = −P … half−1
+		j := 2 * mod(-P, half)
+		for i := 0; i < 2*n; i += 2 {
+			ea[i], ea[i+1] = row[j], row[j+1]
+			ed[i], ed[i+1] = row[w+j], row[w+j+1]
+			j += 2
+			if j == w {
+				j = 0
 			}
-			out[2*n] = xr
-			out[2*n+1] = xi
 		}
+		combine(xe, xo, srcs, t.synLo, t.synHi)
+		// Output i of the interleaved sequence xe0, xo0, xe1, … lands on
+		// column (s + i) mod w.
+		out := dst[r*stride : r*stride+2*w]
+		interleave(out[2*s:], xe, xo, 0, w-s)
+		interleave(out, xe, xo, w-s, w)
+	}
+}
+
+// interleave writes items i0 … i1−1 of the sequence xe[0], xo[0], xe[1],
+// xo[1], … (complex values stored as float pairs) to out[0], out[1], ….
+func interleave(out, xe, xo []float64, i0, i1 int) {
+	i := i0
+	if i < i1 && i%2 == 1 {
+		out[0], out[1] = xo[i-1], xo[i]
+		out = out[2:]
+		i++
+	}
+	for ; i+1 < i1; i += 2 {
+		out[0], out[1], out[2], out[3] = xe[i], xe[i+1], xo[i], xo[i+1]
+		out = out[4:]
+	}
+	if i < i1 {
+		out[0], out[1] = xe[i], xe[i+1]
 	}
 }
 
 // synthesiseColumns inverts analyseColumns on the top-left h×w block of src
 // into dst.
 func (t *Transform) synthesiseColumns(dst, src []float64, h, w int) {
-	L := len(t.rlo)
+	L := len(t.anaLo)
 	stride := 2 * t.nx
 	ww := 2 * w
 	half := h / 2
 	base := 1 - L/2
-	for n := range h {
-		np := n - base
-		par := np & 1
-		Q := np >> 1
-		out := dst[n*stride : n*stride+ww]
-		for i := 0; i < L/2; i++ {
-			m := par + 2*i
-			q := mod(Q-i, half)
-			sa := src[q*stride : q*stride+ww]
-			sd := src[(q+half)*stride : (q+half)*stride+ww]
-			a, b := t.rlo[m], t.rhi[m]
-			if i == 0 {
-				axpy2Set1(out, sa, sd, a, b)
-			} else {
-				axpy2Add1(out, sa, sd, a, b)
-			}
+	P := L/2 - 1
+	srcs := t.srcs
+	for Q := range half {
+		for j := range L / 2 {
+			q := mod(Q-P+j, half)
+			srcs[2*j] = src[q*stride : q*stride+ww]
+			srcs[2*j+1] = src[(q+half)*stride : (q+half)*stride+ww]
 		}
+		n0 := mod(2*Q+base, h)
+		n1 := n0 + 1
+		if n1 == h {
+			n1 = 0
+		}
+		combine(dst[n0*stride:n0*stride+ww], dst[n1*stride:n1*stride+ww], srcs, t.synLo, t.synHi)
 	}
 }
 
-// axpy2Set1 sets out = a·sa + b·sd.
-func axpy2Set1(out, sa, sd []float64, a, b float64) {
-	sa = sa[:len(out)]
-	sd = sd[:len(out)]
-	for c := range out {
-		out[c] = a*sa[c] + b*sd[c]
+// combine sets lo = Σ_i a[i]·s[i] and hi = Σ_i b[i]·s[i] for an even number
+// of source vectors, four (then two) at a time per sweep.
+func combine(lo, hi []float64, s [][]float64, a, b []float64) {
+	L := len(a)
+	i := 0
+	for ; i+3 < L; i += 4 {
+		sweep4(lo, hi, s[i], s[i+1], s[i+2], s[i+3], a[i:i+4], b[i:i+4], i == 0)
+	}
+	for ; i+1 < L; i += 2 {
+		sweep2(lo, hi, s[i], s[i+1], a[i], a[i+1], b[i], b[i+1], i == 0)
 	}
 }
 
-// axpy2Add1 adds a·sa + b·sd to out.
-func axpy2Add1(out, sa, sd []float64, a, b float64) {
-	sa = sa[:len(out)]
-	sd = sd[:len(out)]
-	for c := range out {
-		out[c] += a*sa[c] + b*sd[c]
+// sweep4 adds (or, when set, writes) Σ_i a[i]·s_i to lo and Σ_i b[i]·s_i to
+// hi for the four vectors s0 … s3.
+func sweep4(lo, hi, s0, s1, s2, s3, a, b []float64, set bool) {
+	hi = hi[:len(lo)]
+	s0 = s0[:len(lo)]
+	s1 = s1[:len(lo)]
+	s2 = s2[:len(lo)]
+	s3 = s3[:len(lo)]
+	a0, a1, a2, a3 := a[0], a[1], a[2], a[3]
+	b0, b1, b2, b3 := b[0], b[1], b[2], b[3]
+	if set {
+		for c := range lo {
+			v0, v1, v2, v3 := s0[c], s1[c], s2[c], s3[c]
+			lo[c] = (a0*v0 + a1*v1) + (a2*v2 + a3*v3)
+			hi[c] = (b0*v0 + b1*v1) + (b2*v2 + b3*v3)
+		}
+		return
+	}
+	for c := range lo {
+		v0, v1, v2, v3 := s0[c], s1[c], s2[c], s3[c]
+		lo[c] += (a0*v0 + a1*v1) + (a2*v2 + a3*v3)
+		hi[c] += (b0*v0 + b1*v1) + (b2*v2 + b3*v3)
+	}
+}
+
+// sweep2 is sweep4 for two vectors.
+func sweep2(lo, hi, s0, s1 []float64, a0, a1, b0, b1 float64, set bool) {
+	hi = hi[:len(lo)]
+	s0 = s0[:len(lo)]
+	s1 = s1[:len(lo)]
+	if set {
+		for c := range lo {
+			v0, v1 := s0[c], s1[c]
+			lo[c] = a0*v0 + a1*v1
+			hi[c] = b0*v0 + b1*v1
+		}
+		return
+	}
+	for c := range lo {
+		v0, v1 := s0[c], s1[c]
+		lo[c] += a0*v0 + a1*v1
+		hi[c] += b0*v0 + b1*v1
 	}
 }
 
