@@ -2,6 +2,7 @@ package trajectories
 
 import (
 	"errors"
+	"math"
 	"math/cmplx"
 
 	"gonum.org/v1/gonum/dsp/fourier"
@@ -59,14 +60,17 @@ func MaskPSF(mask []bool, ny, nx int) ([]complex128, error) {
 	return out, nil
 }
 
-// PSF returns the point-spread function of a Cartesian sampling (see MaskPSF),
-// scaled so that full sampling gives a unit impulse: ny×nx for
+// PSF returns the point-spread function of s. For Cartesian samplings it is
+// MaskPSF, scaled so that full sampling gives a unit impulse: ny×nx for
 // FamilyCartesian2D, the nz×ny (z rows, y columns) phase-encode plane for
-// FamilyCartesian3D (the readout contributes a unit impulse along x).
+// FamilyCartesian3D (the readout contributes a unit impulse along x). For
+// non-Cartesian samplings it is PointPSF on the Ny×Nx grid, peak-normalised.
 func (s Sampling) PSF() ([]complex128, error) {
 	switch {
+	case s.Mask == nil && s.K != nil:
+		return PointPSF(s.K, s.Weights, s.Ny, s.Nx)
 	case s.Mask == nil:
-		return nil, errors.New("trajectories: PSF: sampling " + s.Scheme + " has no Cartesian mask")
+		return nil, errors.New("trajectories: PSF: sampling " + s.Scheme + " has neither a mask nor sample positions")
 	case s.Family == FamilyCartesian3D:
 		return MaskPSF(s.Mask, s.Nz, s.Ny)
 	default:
@@ -92,6 +96,85 @@ func SideLobeToPeak(psf []complex128, ny, nx int) (float64, error) {
 	for i, v := range psf {
 		if i != c {
 			side = max(side, cmplx.Abs(v))
+		}
+	}
+	return side / peak, nil
+}
+
+// PointPSF returns the point-spread function of non-Cartesian samples k
+// (cycles per FOV) with density-compensation weights w: the adjoint of unit
+// data, psf(x, y) = Σ_j w_j exp(2πi(kx_j·x + ky_j·y)), evaluated by direct
+// summation on the ny×nx FFT-centred grid (pixel (i, j) at
+// x = (j − nx/2)/nx, y = (i − ny/2)/ny FOV) and divided by its value at the
+// centre, Σ w_j. The cost is len(k)·ny·nx complex multiply-adds; a gridded
+// adjoint (NUFFT) is the fast alternative for large problems. A nil w means
+// unit weights.
+func PointPSF(k [][2]float64, w []float64, ny, nx int) ([]complex128, error) {
+	if ny < 1 || nx < 1 {
+		return nil, errors.New("trajectories: PointPSF: grid sizes must be at least 1")
+	}
+	if len(k) == 0 {
+		return nil, errors.New("trajectories: PointPSF: no samples")
+	}
+	if w != nil && len(w) != len(k) {
+		return nil, errors.New("trajectories: PointPSF: one weight per sample needed")
+	}
+	out := make([]complex128, ny*nx)
+	ex := make([]complex128, nx)
+	ey := make([]complex128, ny)
+	total := 0.0
+	for s, kk := range k {
+		ws := 1.0
+		if w != nil {
+			ws = w[s]
+		}
+		total += ws
+		phase(ex, kk[0], nx)
+		phase(ey, kk[1], ny)
+		for i := range ny {
+			a := complex(ws, 0) * ey[i]
+			row := out[i*nx : (i+1)*nx]
+			for j, e := range ex {
+				row[j] += a * e
+			}
+		}
+	}
+	if total == 0 {
+		return nil, errors.New("trajectories: PointPSF: weights sum to zero")
+	}
+	inv := complex(1/total, 0)
+	for i := range out {
+		out[i] *= inv
+	}
+	return out, nil
+}
+
+// phase fills e[j] = exp(2πi·k·(j − n/2)/n).
+func phase(e []complex128, k float64, n int) {
+	for j := range e {
+		s, c := math.Sincos(2 * math.Pi * k * float64(j-n/2) / float64(n))
+		e[j] = complex(c, s)
+	}
+}
+
+// SideLobeToPeakOutside is SideLobeToPeak with the side lobes sought only at
+// pixels farther than radius pixels from the centre, so that the main lobe of
+// a non-Cartesian PSF (whose first neighbours are not aliasing) is left out.
+func SideLobeToPeakOutside(psf []complex128, ny, nx int, radius float64) (float64, error) {
+	if ny < 1 || nx < 1 || len(psf) != ny*nx {
+		return 0, errors.New("trajectories: SideLobeToPeakOutside: psf length must be ny·nx with ny, nx ≥ 1")
+	}
+	c := (ny/2)*nx + nx/2
+	peak := cmplx.Abs(psf[c])
+	if peak == 0 {
+		return 0, errors.New("trajectories: SideLobeToPeakOutside: PSF is zero at the centre")
+	}
+	side := 0.0
+	for i := range ny {
+		for j := range nx {
+			if math.Hypot(float64(i-ny/2), float64(j-nx/2)) > radius {
+				side = max(side, cmplx.Abs(psf[i*nx+j]))
+			}
 		}
 	}
 	return side / peak, nil

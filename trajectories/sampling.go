@@ -13,6 +13,18 @@ const (
 	// along kx at one (ky, kz) phase-encode point; the reference is ny·nz
 	// points (the full rectangle, even when corners are cut).
 	FamilyCartesian3D = "cartesian-3d"
+	// FamilyRadial is a 2D radial scan: a shot is one spoke; the reference
+	// is the Nyquist count π/2·N full spokes (π·N half spokes), rounded, for an
+	// N×N image.
+	FamilyRadial = "radial"
+	// FamilySpiral is a 2D spiral scan: a shot is one interleave; the
+	// reference is the number of constant-density interleaves that meet
+	// Nyquist with the same readout duration.
+	FamilySpiral = "spiral"
+	// FamilyIllumination is an ODT illumination set: a shot is one
+	// illumination direction; the reference is the count that fills the
+	// accessible spectrum without gaps.
+	FamilyIllumination = "illumination"
 )
 
 // Scheme names of the 2D Cartesian constructors.
@@ -60,6 +72,19 @@ type Sampling struct {
 	Calib int
 	// CalibZ is the kz extent of the 3D calibration box.
 	CalibZ int
+	// K lists the k-space sample positions of non-Cartesian families as
+	// (kx, ky) in cycles per FOV, shot after shot: samples
+	// [i·ShotLen, (i+1)·ShotLen) belong to shot i. Nil for Cartesian ones.
+	K [][2]float64
+	// ShotLen is the number of samples per shot in K.
+	ShotLen int
+	// Weights holds one density-compensation weight per sample of K: the
+	// k-space area (cycles/FOV)² each sample stands for.
+	Weights []float64
+	// Angles lists, in acquisition order, the spoke angles (radial), the
+	// interleave rotations (spiral) or the illumination azimuths (ODT), in
+	// degrees from the +kx axis.
+	Angles []float64
 	// DiscScale and DiscGrowth are the λ and growth of a Poisson-disc
 	// sampling: samples keep PoissonDiscRadius(DiscScale, DiscGrowth, ρ)
 	// apart. Zero for other schemes.
