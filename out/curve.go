@@ -374,20 +374,21 @@ func (ct clockTicks) Ticks(min, max float64) []plot.Tick {
 // five to eight major ticks) with labels of one consistent precision.
 type niceTicks struct{}
 
-// niceStep returns a 1, 2, 2.5 or 5 × 10^k step near span/target and its
-// number of minor subdivisions.
-func niceStep(span float64, target int) (float64, int) {
-	raw := span / float64(target)
-	mag := math.Pow(10, math.Floor(math.Log10(raw)))
-	for _, m := range []struct {
-		f     float64
-		minor int
-	}{{1, 2}, {2, 2}, {2.5, 5}, {5, 5}} {
-		if raw <= m.f*mag*1.0000001 {
-			return m.f * mag, m.minor
+// niceStep returns the smallest 1, 2, 2.5 or 5 × 10^k step that cuts span
+// into at most maxIntervals intervals, and its number of minor subdivisions.
+func niceStep(span float64, maxIntervals int) (float64, int) {
+	mag := math.Pow(10, math.Floor(math.Log10(span/float64(maxIntervals))))
+	for {
+		for _, m := range []struct {
+			f     float64
+			minor int
+		}{{1, 2}, {2, 2}, {2.5, 5}, {5, 5}} {
+			if span/(m.f*mag) <= float64(maxIntervals)*1.0000001 {
+				return m.f * mag, m.minor
+			}
 		}
+		mag *= 10
 	}
-	return 10 * mag, 2
 }
 
 // Ticks implements plot.Ticker.
@@ -395,7 +396,7 @@ func (niceTicks) Ticks(min, max float64) []plot.Tick {
 	if !(max > min) {
 		return []plot.Tick{{Value: min, Label: formatValue(min)}}
 	}
-	step, minor := niceStep(max-min, 6)
+	step, minor := niceStep(max-min, 7)
 	decimals := max0(int(-math.Floor(math.Log10(step) + 1e-9)))
 	if math.Abs(step/math.Pow(10, math.Floor(math.Log10(step)+1e-9))-2.5) < 1e-6 {
 		decimals++
@@ -458,10 +459,10 @@ func chartRanges(c CurveChart) (xmin, xmax, ymin, ymax float64) {
 		}
 		return lo - d, hi + d
 	}
+	dataMin := xmin
 	xmin, xmax = pad(xmin, xmax, 0.05, 1)
-	if xmin < 0 && xmin+0.05*(xmax-xmin) >= 0 {
-		// Keep the axis from dipping below zero for data that start at 0.
-		xmin = math.Min(0, xmin)
+	if dataMin >= 0 {
+		xmin = math.Max(xmin, 0) // no negative scan times on the axis
 	}
 	ymin, ymax = pad(ymin, ymax, 0.07, 0.01)
 	return xmin, xmax, ymin, ymax

@@ -8,6 +8,8 @@ import (
 	"os"
 	"strconv"
 	"testing"
+
+	xfont "golang.org/x/image/font"
 )
 
 // readCSVFile parses a whole CSV file with encoding/csv (rows may differ in
@@ -47,3 +49,5 @@ func atoi(t *testing.T, s string) int {
 }
 
 func decodeBytes(b []byte) (image.Image, error) { return png.Decode(bytes.NewReader(b)) }
+
+func measure(face xfont.Face, s string) int { return xfont.MeasureString(face, s).Ceil() }

@@ -85,7 +85,7 @@ func legendEntries(c CurveChart) []legendEntry {
 		if pt.Label != "" {
 			txt += ", " + pt.Label
 		}
-		txt += fmt.Sprintf(", %s, %s %s", FormatMinSec(pt.ScanTime), metric, formatValue(pt.Mean))
+		txt += fmt.Sprintf(", %s, mean %s %s", FormatMinSec(pt.ScanTime), metric, formatValue(pt.Mean))
 		add(legendEntry{text: txt, thumb: func(dc draw.Canvas, mid vg.Point) {
 			r := pickRing
 			r.Radius = vg.Points(6)
