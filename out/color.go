@@ -157,8 +157,8 @@ func buildDiverging() {
 
 // DivergingColor returns the colour the diverging map gives to v when the
 // map spans [-limit, +limit]; values beyond ±limit get the end colours. It
-// panics on nothing: a non-positive or NaN limit, or a NaN v, yields the
-// neutral colour.
+// never panics: a non-positive or NaN limit, or a NaN v, yields the neutral
+// colour.
 func DivergingColor(v, limit float64) color.RGBA {
 	divergingOnce.Do(buildDiverging)
 	return divergingLUT[divergingIndex(v, limit)]

@@ -220,6 +220,12 @@ func renderCurve(c CurveChart, format string) (b []byte, err error) {
 	if _, err := cw.WriteTo(&buf); err != nil {
 		return nil, fmt.Errorf("out: encoding chart as %s: %w", format, err)
 	}
+	if format == "svg" {
+		// Name a generic fallback, so viewers without the font still draw
+		// sans-serif text of similar width.
+		return bytes.ReplaceAll(buf.Bytes(), []byte("font-family:Liberation Sans;"),
+			[]byte("font-family:'Liberation Sans',sans-serif;")), nil
+	}
 	return buf.Bytes(), nil
 }
 

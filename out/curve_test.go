@@ -97,6 +97,9 @@ func TestPlotCurvePNGAndSVG(t *testing.T) {
 	if root != "svg" {
 		t.Errorf("SVG root element %q, want svg", root)
 	}
+	if !bytes.Contains(raw, []byte("sans-serif")) {
+		t.Error("SVG text styles name no generic sans-serif fallback")
+	}
 	all := texts.String()
 	for _, want := range []string{c.Title, "wavelet-L1 &", "<FISTA>", "acceptance bar: SSIM ≥ 0.9", "scan time (m:ss)", "2:00", "Caution:"} {
 		if !strings.Contains(all, want) {
