@@ -8,6 +8,7 @@ import (
 	"math"
 	"sort"
 	"strings"
+	"unicode/utf8"
 
 	xfont "golang.org/x/image/font"
 	"gonum.org/v1/plot"
@@ -240,13 +241,13 @@ func layoutChart(dc draw.Canvas, c CurveChart) chartLayout {
 	dc.SetColor(color.White)
 	dc.Fill(dc.Rectangle.Path())
 
-	const margin = 14 * vg.Millimeter / 4 // 3.5 mm
+	const margin = 3.5 * vg.Millimeter
 	area := draw.Crop(dc, margin, -margin, margin, -margin)
 
 	if c.Title != "" {
 		sty := textStyle(15, true, inkColor)
 		sty.XAlign, sty.YAlign = draw.XLeft, draw.YTop
-		lines := wrapText(sty, c.Title, area.Max.X-area.Min.X)
+		lines := capLines(sty, wrapText(sty, c.Title, area.Max.X-area.Min.X), maxTitleLines, area.Max.X-area.Min.X)
 		y := area.Max.Y
 		for _, l := range lines {
 			area.FillText(sty, vg.Point{X: area.Min.X, Y: y}, l)
@@ -258,7 +259,7 @@ func layoutChart(dc draw.Canvas, c CurveChart) chartLayout {
 	if c.Caution != "" {
 		sty := textStyle(10.5, false, cautionColor)
 		sty.XAlign, sty.YAlign = draw.XLeft, draw.YBottom
-		lines := wrapText(sty, "Caution: "+c.Caution, area.Max.X-area.Min.X)
+		lines := capLines(sty, wrapText(sty, "Caution: "+c.Caution, area.Max.X-area.Min.X), maxCautionLines, area.Max.X-area.Min.X)
 		y := area.Min.Y
 		for i := len(lines) - 1; i >= 0; i-- {
 			area.FillText(sty, vg.Point{X: area.Min.X, Y: y}, lines[i])
@@ -272,11 +273,16 @@ func layoutChart(dc draw.Canvas, c CurveChart) chartLayout {
 	entries := legendEntries(c)
 	limit := (area.Max.X - area.Min.X) * 0.34
 	size, legendW := legendSizes[0], vg.Length(0)
+	fits := func() bool { return legendHeight(entries, legendW, size) <= area.Max.Y-area.Min.Y }
 	for _, size = range legendSizes {
 		legendW = legendWidth(entries, limit, size)
-		if legendHeight(entries, legendW, size) <= area.Max.Y-area.Min.Y {
+		if fits() {
 			break
 		}
+	}
+	// Still too tall at the smallest type: list fewer curves and say so.
+	for hidden := 1; !fits() && hidden < len(c.Curves); hidden++ {
+		entries = legendEntriesShowing(c, len(c.Curves)-hidden)
 	}
 	plotArea := draw.Crop(area, 0, -(legendW + 10), 0, 0)
 	legendArea := draw.Crop(area, area.Max.X-area.Min.X-legendW, 0, 0, 0)
@@ -295,11 +301,59 @@ func layoutChart(dc draw.Canvas, c CurveChart) chartLayout {
 	return chartLayout{data: p.DataCanvas(plotArea).Rectangle, legend: lr}
 }
 
-// wrapText breaks txt into lines no wider than width, at spaces.
+// Most lines of title and caution text on a chart; the rest is cut with
+// "…" (the full text belongs in the report and the tables).
+const (
+	maxTitleLines   = 2
+	maxCautionLines = 5
+)
+
+// capLines keeps at most n lines, marking a cut with "…" on the last one.
+func capLines(sty text.Style, lines []string, n int, width vg.Length) []string {
+	if len(lines) <= n {
+		return lines
+	}
+	lines = lines[:n]
+	last := lines[n-1]
+	for last != "" && sty.Width(last+" …") > width {
+		_, k := utf8.DecodeLastRuneInString(last)
+		last = last[:len(last)-k]
+	}
+	lines[n-1] = last + " …"
+	return lines
+}
+
+// breakWord splits a word wider than width into pieces that fit.
+func breakWord(sty text.Style, w string, width vg.Length) []string {
+	var parts []string
+	for w != "" {
+		n := len(w)
+		for n > 0 && sty.Width(w[:n]) > width {
+			_, k := utf8.DecodeLastRuneInString(w[:n])
+			n -= k
+		}
+		if n == 0 { // not even one character fits: keep one anyway
+			_, n = utf8.DecodeRuneInString(w)
+		}
+		parts = append(parts, w[:n])
+		w = w[n:]
+	}
+	return parts
+}
+
+// wrapText breaks txt into lines no wider than width, at spaces, and
+// inside words only where one word alone is too wide.
 func wrapText(sty text.Style, txt string, width vg.Length) []string {
 	var lines []string
 	for _, para := range strings.Split(txt, "\n") {
-		words := strings.Fields(para)
+		var words []string
+		for _, w := range strings.Fields(para) {
+			if sty.Width(w) > width {
+				words = append(words, breakWord(sty, w, width)...)
+			} else {
+				words = append(words, w)
+			}
+		}
 		if len(words) == 0 {
 			lines = append(lines, "")
 			continue

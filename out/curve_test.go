@@ -156,7 +156,24 @@ func TestLegendNeverCoversData(t *testing.T) {
 		}
 		many.Curves = append(many.Curves, cu)
 	}
-	for name, c := range map[string]CurveChart{"three curves": testChart(), "fourteen long names": many} {
+	forty := many
+	forty.Curves = nil
+	for k := range 40 {
+		cu := many.Curves[k%len(many.Curves)]
+		forty.Curves = append(forty.Curves, cu)
+	}
+	wordy := testChart()
+	wordy.Title = strings.Repeat("a title far too long for one line ", 12)
+	wordy.Caution = strings.Repeat("a caution far too long for a chart ", 60)
+	wordy.Curves[0].Name = strings.Repeat("x", 300)
+	charts := map[string]CurveChart{
+		"three curves":           testChart(),
+		"fourteen long names":    many,
+		"forty curves":           forty,
+		"long title, caution":    wordy,
+		"unbroken 300-char name": wordy,
+	}
+	for name, c := range charts {
 		rec := &recorder.Canvas{}
 		dc := draw.NewCanvas(rec, chartWidth, chartHeight)
 		lay := layoutChart(dc, c)
@@ -169,6 +186,49 @@ func TestLegendNeverCoversData(t *testing.T) {
 		if w, h := lay.data.Max.X-lay.data.Min.X, lay.data.Max.Y-lay.data.Min.Y; w < chartWidth/2 || h < chartHeight/3 {
 			t.Errorf("%s: data area only %v×%v", name, w, h)
 		}
+	}
+}
+
+func TestWrapTextFitsWidth(t *testing.T) {
+	sty := textStyle(legendFontSize, false, inkColor)
+	const width = 120
+	for _, txt := range []string{
+		strings.Repeat("word ", 40),
+		strings.Repeat("x", 300),
+		"short",
+		"two\nparagraphs with some words",
+	} {
+		lines := wrapText(sty, txt, width)
+		if strings.Join(strings.Fields(strings.Join(lines, "")), "") != strings.Join(strings.Fields(txt), "") {
+			t.Errorf("wrapping %q lost text: %q", txt, lines)
+		}
+		for _, l := range lines {
+			if sty.Width(l) > width {
+				t.Errorf("line %q is %v wide, over %v", l, sty.Width(l), width)
+			}
+		}
+	}
+	capped := capLines(sty, wrapText(sty, strings.Repeat("word ", 200), width), 3, width)
+	if len(capped) != 3 || !strings.HasSuffix(capped[2], "…") || sty.Width(capped[2]) > width {
+		t.Errorf("capLines gave %q", capped)
+	}
+}
+
+func TestLegendListsFewerCurvesWhenCrowded(t *testing.T) {
+	c := testChart()
+	for len(c.Curves) < 60 {
+		c.Curves = append(c.Curves, c.Curves[len(c.Curves)%3])
+	}
+	rec := &recorder.Canvas{}
+	layoutChart(draw.NewCanvas(rec, chartWidth, chartHeight), c)
+	found := false
+	for _, a := range rec.Actions {
+		if ft, ok := a.(*recorder.FillString); ok && strings.Contains(ft.String, "more curves (see the table)") {
+			found = true
+		}
+	}
+	if !found {
+		t.Error("60 curves: legend does not say that curves are left out")
 	}
 }
 

@@ -12,8 +12,8 @@ import (
 // its text.
 type legendEntry struct {
 	text  string
-	thumb func(c draw.Canvas, mid vg.Point) // draws the symbol centred at mid; nil for none
-	gap   bool                              // leave extra space before this entry
+	thumb func(c draw.Canvas, mid vg.Point, k float64) // draws the symbol centred at mid, sizes × k; nil for none
+	gap   bool                                         // leave extra space before this entry
 }
 
 const (
@@ -24,17 +24,28 @@ const (
 
 // legendEntries lists what the legend says for chart c.
 func legendEntries(c CurveChart) []legendEntry {
+	return legendEntriesShowing(c, len(c.Curves))
+}
+
+// legendEntriesShowing is legendEntries naming only the first shown curves,
+// followed by a note on how many more are drawn.
+func legendEntriesShowing(c CurveChart, shown int) []legendEntry {
 	var es []legendEntry
-	for i, cu := range c.Curves {
+	for i, cu := range c.Curves[:shown] {
 		st := curveStyle(i)
 		name := cu.Name
 		if name == "" {
 			name = fmt.Sprintf("curve %d", i+1)
 		}
-		es = append(es, legendEntry{text: name, thumb: func(dc draw.Canvas, mid vg.Point) {
+		es = append(es, legendEntry{text: name, thumb: func(dc draw.Canvas, mid vg.Point, k float64) {
+			g := st.glyph
+			g.Radius *= vg.Length(min(k, 1))
 			dc.StrokeLine2(st.line, mid.X-legendThumbW/2, mid.Y, mid.X+legendThumbW/2, mid.Y)
-			dc.DrawGlyphNoClip(st.glyph, mid)
+			dc.DrawGlyphNoClip(g, mid)
 		}})
+	}
+	if more := len(c.Curves) - shown; more > 0 {
+		es = append(es, legendEntry{text: fmt.Sprintf("… and %d more curves (see the table)", more)})
 	}
 	metric := c.Metric
 	if metric == "" {
@@ -54,14 +65,14 @@ func legendEntries(c CurveChart) []legendEntry {
 		}
 		add(legendEntry{
 			text: fmt.Sprintf("acceptance bar: %s %s %s", metric, op, formatValue(c.Threshold)),
-			thumb: func(dc draw.Canvas, mid vg.Point) {
+			thumb: func(dc draw.Canvas, mid vg.Point, k float64) {
 				dc.StrokeLine2(thresholdStyle, mid.X-legendThumbW/2, mid.Y, mid.X+legendThumbW/2, mid.Y)
 			},
 		})
 		add(legendEntry{
 			text: fmt.Sprintf("shaded: fails the bar (%s the line)", side),
-			thumb: func(dc draw.Canvas, mid vg.Point) {
-				const h = 5
+			thumb: func(dc draw.Canvas, mid vg.Point, k float64) {
+				h := vg.Length(5 * k)
 				dc.FillPolygon(failShade, []vg.Point{
 					{X: mid.X - legendThumbW/2, Y: mid.Y - h}, {X: mid.X + legendThumbW/2, Y: mid.Y - h},
 					{X: mid.X + legendThumbW/2, Y: mid.Y + h}, {X: mid.X - legendThumbW/2, Y: mid.Y + h},
@@ -86,9 +97,9 @@ func legendEntries(c CurveChart) []legendEntry {
 			txt += ", " + pt.Label
 		}
 		txt += fmt.Sprintf(", %s, mean %s %s", FormatMinSec(pt.ScanTime), metric, formatValue(pt.Mean))
-		add(legendEntry{text: txt, thumb: func(dc draw.Canvas, mid vg.Point) {
+		add(legendEntry{text: txt, thumb: func(dc draw.Canvas, mid vg.Point, k float64) {
 			r := pickRing
-			r.Radius = vg.Points(6)
+			r.Radius = vg.Points(6 * k)
 			dc.DrawGlyphNoClip(r, mid)
 		}})
 	}
@@ -100,9 +111,9 @@ func legendEntries(c CurveChart) []legendEntry {
 		if n := drawCounts(c); n != "" {
 			txt += " over " + n + " noise draws"
 		}
-		add(legendEntry{text: txt, thumb: func(dc draw.Canvas, mid vg.Point) {
+		add(legendEntry{text: txt, thumb: func(dc draw.Canvas, mid vg.Point, k float64) {
 			sty := draw.LineStyle{Color: barColor, Width: vg.Points(1.1)}
-			const h, cw = 6, 4.5
+			h, cw := vg.Length(6*k), vg.Length(4.5)
 			dc.StrokeLine2(sty, mid.X, mid.Y-h, mid.X, mid.Y+h)
 			dc.StrokeLine2(sty, mid.X-cw/2, mid.Y-h, mid.X+cw/2, mid.Y-h)
 			dc.StrokeLine2(sty, mid.X-cw/2, mid.Y+h, mid.X+cw/2, mid.Y+h)
@@ -174,7 +185,7 @@ func layoutLegend(area *draw.Canvas, es []legendEntry, width, size, top vg.Lengt
 		lines := wrapText(sty, e.text, width-legendThumbW-legendGap)
 		if area != nil && e.thumb != nil {
 			mid := vg.Point{X: left + legendThumbW/2, Y: y - lineH/2}
-			e.thumb(*area, mid)
+			e.thumb(*area, mid, float64(size/legendFontSize))
 		}
 		for _, l := range lines {
 			if area != nil {
