@@ -148,12 +148,3 @@ func TestSummarize(t *testing.T) {
 		t.Errorf("one value must give no bound, got %v", one.Lower)
 	}
 }
-
-func TestGoldenLogFindsMinimum(t *testing.T) {
-	// f has its minimum at λ = 3e-3 in log λ.
-	f := func(l float64) float64 { d := math.Log(l) - math.Log(3e-3); return d * d }
-	got, _ := goldenLog(f, 1e-5, 1, 30)
-	if math.Abs(math.Log(got/3e-3)) > 1e-4 {
-		t.Errorf("minimum at %v, want 3e-3", got)
-	}
-}

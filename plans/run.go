@@ -10,6 +10,7 @@ import (
 	"sync"
 	"time"
 
+	"accelplan/priors"
 	"accelplan/simulate"
 	"accelplan/simulate/quality"
 	"accelplan/trajectories"
@@ -367,6 +368,10 @@ func (w *workerState) score(mag []float64) (nrmse, psnr, ssim float64, err error
 	return
 }
 
+// tuneEvals is the number of reconstructions of the golden-section search:
+// the bracket shrinks by 0.618^11 ≈ 0.5% of its width in log λ.
+const tuneEvals = 12
+
 // tune fixes λ for one candidate and method on a calibration noise draw that
 // is never scored, by a golden-section search over log λ that optimises the
 // plan's acceptance metric.
@@ -400,35 +405,18 @@ func (w *workerState) tune(j job, rc Recon) error {
 		v := Result{NRMSE: n, PSNR: ps, SSIM: ss}.Metric(metric)
 		return sign * v
 	}
-	best, bestCost := goldenLog(cost, rc.LambdaLook[0], rc.LambdaLook[1], 12)
+	best, trace, err := priors.TuneLambda(cost, rc.LambdaLook[0], rc.LambdaLook[1], tuneEvals)
 	if firstErr != nil {
 		return firstErr
+	}
+	if err != nil {
+		return err
+	}
+	bestCost := math.Inf(1)
+	for _, e := range trace {
+		bestCost = math.Min(bestCost, e.Score)
 	}
 	w.env.out.Tunings[j.cand][j.recon] = Tuning{Lambda: best, Rule: "tuned on a calibration noise draw (" + metric + ")",
 		Score: sign * bestCost, NoiseSeed: seed, Evals: evals}
 	return nil
-}
-
-// goldenLog minimises f over [lo, hi] in log λ by golden-section search with
-// evals evaluations of the interior (Kiefer 1953; any numerical-methods text).
-func goldenLog(f func(float64) float64, lo, hi float64, evals int) (best, fbest float64) {
-	a, b := math.Log(lo), math.Log(hi)
-	g := (math.Sqrt(5) - 1) / 2
-	c, d := b-g*(b-a), a+g*(b-a)
-	fc, fd := f(math.Exp(c)), f(math.Exp(d))
-	for i := 2; i < evals; i++ {
-		if fc <= fd {
-			b, d, fd = d, c, fc
-			c = b - g*(b-a)
-			fc = f(math.Exp(c))
-		} else {
-			a, c, fc = c, d, fd
-			d = a + g*(b-a)
-			fd = f(math.Exp(d))
-		}
-	}
-	if fc <= fd {
-		return math.Exp(c), fc
-	}
-	return math.Exp(d), fd
 }
