@@ -127,7 +127,7 @@ func DesignSpiral(sp SpiralSpec) (SpiralDesign, error) {
 
 // design runs the time-optimal design with limits scaled by margin.
 func (sp SpiralSpec) design(margin float64) SpiralDesign {
-	kmax := float64(sp.N) / 2 / sp.FOV // 1/m
+	kmax := float64(sp.N) / 2 / sp.FOV  // 1/m
 	vmax := GammaBar * sp.GMax * margin // k-space speed limit, 1/m/s
 	amax := GammaBar * sp.SMax * margin // k-space acceleration limit, 1/m/s²
 	lam := float64(sp.Interleaves) / (2 * math.Pi * sp.FOV)
