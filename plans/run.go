@@ -25,6 +25,9 @@ type Candidate struct {
 	Sampling trajectories.Sampling
 	ScanTime float64 // seconds
 	MaskSeed uint64
+	// SideLobe is the PSF side-lobe-to-peak ratio of the sampling (Lustig,
+	// Donoho, Pauly 2007): 1 for regular undersampling without calibration.
+	SideLobe float64
 }
 
 // Key names the candidate for seeds, file names and tables.
@@ -126,6 +129,13 @@ func Candidates(p *Plan) ([]Candidate, error) {
 			if err != nil {
 				return nil, &Error{File: p.Source, Line: findKeyIn(string(p.Text), "scheme", si, "accelerations"),
 					Key: fmt.Sprintf("scheme[%d].accelerations", si+1), Msg: fmt.Sprintf("R = %g: %v", r, err)}
+			}
+			psf, err := c.Sampling.PSF()
+			if err == nil {
+				c.SideLobe, err = trajectories.SideLobeToPeak(psf, ny, nx)
+			}
+			if err != nil {
+				return nil, fmt.Errorf("scheme %q, R = %g: PSF: %w", s.Label, r, err)
 			}
 			c.ScanTime = Cartesian2DTime(p.Scanner.TRms, c.Sampling.Shots, p.Scanner.EchoTrain, p.Scanner.Averages)
 			out = append(out, c)

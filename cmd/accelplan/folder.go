@@ -2,6 +2,8 @@ package main
 
 import (
 	"fmt"
+	"math"
+	"math/cmplx"
 	"os"
 	"path/filepath"
 	"strconv"
@@ -58,14 +60,14 @@ func writeFolder(dir string, o *plans.Outcome, a *plans.Analysis, version, cauti
 		return err
 	}
 	// summary.csv: one row per candidate and method.
-	header = []string{"scheme", "method", "asked_R", "achieved_R", "lines", "scan_time_s", "scan_time", "draws"}
+	header = []string{"scheme", "method", "asked_R", "achieved_R", "lines", "psf_sidelobe_to_peak", "scan_time_s", "scan_time", "draws"}
 	for _, m := range []string{"ssim", "psnr_db", "nrmse"} {
 		header = append(header, m+"_mean", m+"_sd", m+"_lower95", m+"_upper95")
 	}
 	header = append(header, "lambda_rel", "lambda_rule", "meets_bar", "recommended")
 	rows = rows[:0]
 	for i, r := range a.Rows {
-		row := []string{r.Scheme, r.Method, ff(r.AskedR), ff(r.R), strconv.Itoa(r.Shots), ff(r.ScanTime), out.FormatMinSec(r.ScanTime), strconv.Itoa(r.SSIM.N)}
+		row := []string{r.Scheme, r.Method, ff(r.AskedR), ff(r.R), strconv.Itoa(r.Shots), ff(o.Candidates[r.Candidate].SideLobe), ff(r.ScanTime), out.FormatMinSec(r.ScanTime), strconv.Itoa(r.SSIM.N)}
 		for _, s := range []plans.Summary{r.SSIM, r.PSNR, r.NRMSE} {
 			row = append(row, ff(s.Mean), ff(s.Std), ff(s.Lower), ff(s.Upper))
 		}
@@ -115,6 +117,14 @@ func writeFolder(dir string, o *plans.Outcome, a *plans.Analysis, version, cauti
 		if err := out.WriteMaskPNG(filepath.Join(img, maskName), c.Sampling.Mask, ny, nx); err != nil {
 			return err
 		}
+		psf, err := c.Sampling.PSF()
+		if err != nil {
+			return err
+		}
+		psfName := fmt.Sprintf("psf_%s_R%s.png", slug(p.Schemes[c.Scheme].Label), ff(c.AskedR))
+		if err := out.WriteGrayPNG(filepath.Join(img, psfName), psfDecibels(psf), ny, nx, -40, 0); err != nil {
+			return err
+		}
 		for ri := range p.Recons {
 			stem := imageName(o, ci, ri)
 			m := o.Images[ci][ri]
@@ -135,6 +145,20 @@ func writeFolder(dir string, o *plans.Outcome, a *plans.Analysis, version, cauti
 	fmt.Fprintf(&b, "\nError maps share one colour scale: ±%.3g (reconstruction − truth).\n", errLimit)
 	fmt.Fprintf(&b, "accelplan %s; plan %s; seed %d; noise σ per sample %.4g.\n\n%s\n", version, p.Source, p.Seed, o.Sigma, caution)
 	return os.WriteFile(filepath.Join(dir, "recommendation.txt"), []byte(b.String()), 0o644)
+}
+
+// psfDecibels returns 20·log10(|psf|/peak), floored at −120 dB, for display
+// on a −40 … 0 dB grey scale.
+func psfDecibels(psf []complex128) []float64 {
+	peak := 0.0
+	for _, v := range psf {
+		peak = math.Max(peak, cmplx.Abs(v))
+	}
+	db := make([]float64, len(psf))
+	for i, v := range psf {
+		db[i] = math.Max(20*math.Log10(cmplx.Abs(v)/peak), -120)
+	}
+	return db
 }
 
 func abs(x float64) float64 {
