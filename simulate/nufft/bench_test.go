@@ -72,35 +72,41 @@ func BenchmarkPair(b *testing.B) {
 	}
 }
 
-// BenchmarkSteps times the steps of the pair separately (one worker).
+// BenchmarkSteps times the steps of the pair separately: spreading (the
+// adjoint's gridding) and interpolation on one and two workers, and one FFT
+// of the 512² oversampled grid.
 func BenchmarkSteps(b *testing.B) {
-	p, x, y := benchPlan(b, Options{})
-	p.Forward(y, x)
-	b.Run("spread", func(b *testing.B) {
-		p.in = y
-		cpu0 := cpuTime()
-		for b.Loop() {
-			clear(p.grid)
-			p.next.Store(0)
-			p.spreadWorker(0)
+	for _, workers := range []int{1, 2} {
+		p, x, y := benchPlan(b, Options{Workers: workers})
+		p.Forward(y, x)
+		b.Run(fmt.Sprintf("spread/workers=%d", workers), func(b *testing.B) {
+			p.in = y
+			cpu0 := cpuTime()
+			for b.Loop() {
+				clear(p.grid)
+				p.next.Store(0)
+				p.team.run(p.spreadJob)
+			}
+			reportSamples(b, p.DataLen(), cpu0)
+		})
+		b.Run(fmt.Sprintf("interp/workers=%d", workers), func(b *testing.B) {
+			p.out = y
+			cpu0 := cpuTime()
+			for b.Loop() {
+				p.team.run(p.interpJob)
+			}
+			reportSamples(b, p.DataLen(), cpu0)
+		})
+		if workers == 1 {
+			b.Run("fft", func(b *testing.B) {
+				cpu0 := cpuTime()
+				for b.Loop() {
+					p.fft.Forward(p.grid, p.grid)
+				}
+				b.ReportMetric((cpuTime()-cpu0).Seconds()/float64(b.N)*1e3, "cpu-ms/op")
+			})
 		}
-		reportSamples(b, p.DataLen(), cpu0)
-	})
-	b.Run("interp", func(b *testing.B) {
-		p.out = y
-		cpu0 := cpuTime()
-		for b.Loop() {
-			p.interpWorker(0)
-		}
-		reportSamples(b, p.DataLen(), cpu0)
-	})
-	b.Run("fft", func(b *testing.B) {
-		cpu0 := cpuTime()
-		for b.Loop() {
-			p.fft.Forward(p.grid, p.grid)
-		}
-		b.ReportMetric((cpuTime()-cpu0).Seconds()/float64(b.N)*1e3, "cpu-ms/op")
-	})
+	}
 }
 
 // BenchmarkWidth times the pair per kernel width (one worker).

@@ -157,35 +157,50 @@ func TestAdjointIdentity(t *testing.T) {
 }
 
 // TestWorkersGiveIdenticalResults checks that Forward and Adjoint are
-// bit-for-bit the same for every worker count.
+// bit-for-bit the same for every worker count, on a radial trajectory with
+// random points added (including band edges) and on a degenerate one whose
+// samples all share one k-space row.
 func TestWorkersGiveIdenticalResults(t *testing.T) {
 	kx, ky := radialPoints(64, 60)
-	ex, ey := randomPoints(64, 64, 500, 5) // and a random part, including band edges
+	ex, ey := randomPoints(64, 64, 500, 5)
 	kx, ky = append(kx, ex...), append(ky, ey...)
-	x := randomComplex(64*64, 6)
-	y := randomComplex(len(kx), 7)
-	var refF, refA []complex128
-	for _, workers := range []int{1, 2, 3, 5, 8} {
-		p, err := New(64, 64, kx, ky, Options{Workers: workers, Width: 5})
-		if err != nil {
-			t.Fatal(err)
-		}
-		f := make([]complex128, p.DataLen())
-		a := make([]complex128, p.ImageLen())
-		p.Forward(f, x)
-		p.Adjoint(a, y)
-		if refF == nil {
-			refF, refA = f, a
-			continue
-		}
-		for i := range f {
-			if f[i] != refF[i] {
-				t.Fatalf("workers=%d: Forward sample %d = %v, with one worker %v", workers, i, f[i], refF[i])
+	lx, ly := randomPoints(64, 64, 400, 15)
+	for i := range ly {
+		ly[i] = 3.25
+	}
+	for _, g := range []struct {
+		name   string
+		kx, ky []float64
+	}{{"radial+random", kx, ky}, {"one row", lx, ly}} {
+		x := randomComplex(64*64, 6)
+		y := randomComplex(len(g.kx), 7)
+		var refF, refA []complex128
+		for _, workers := range []int{1, 2, 3, 5, 8} {
+			p, err := New(64, 64, g.kx, g.ky, Options{Workers: workers, Width: 5})
+			if err != nil {
+				t.Fatal(err)
 			}
-		}
-		for i := range a {
-			if a[i] != refA[i] {
-				t.Fatalf("workers=%d: Adjoint pixel %d = %v, with one worker %v", workers, i, a[i], refA[i])
+			f := make([]complex128, p.DataLen())
+			a := make([]complex128, p.ImageLen())
+			p.Forward(f, x)
+			p.Adjoint(a, y)
+			if refF == nil {
+				refF, refA = f, a
+				// the one-worker result is itself right
+				if e := relErr(a, ndftAdjoint(64, 64, g.kx, g.ky, y)); e > 1e-4 {
+					t.Fatalf("%s: adjoint error %.1e against the direct sum", g.name, e)
+				}
+				continue
+			}
+			for i := range f {
+				if f[i] != refF[i] {
+					t.Fatalf("%s, workers=%d: Forward sample %d = %v, with one worker %v", g.name, workers, i, f[i], refF[i])
+				}
+			}
+			for i := range a {
+				if a[i] != refA[i] {
+					t.Fatalf("%s, workers=%d: Adjoint pixel %d = %v, with one worker %v", g.name, workers, i, a[i], refA[i])
+				}
 			}
 		}
 	}
@@ -310,5 +325,30 @@ func TestBadInput(t *testing.T) {
 	// points exactly on the band edge are accepted
 	if _, err := New(8, 10, []float64{-5, 5}, []float64{4, -4}, Options{}); err != nil {
 		t.Errorf("band-edge points refused: %v", err)
+	}
+}
+
+// TestSampleOrder checks the plan's internal sort, which fixes the summation
+// order of every grid cell: samples by first kernel column, then row, then
+// index, each index exactly once.
+func TestSampleOrder(t *testing.T) {
+	kx, ky := randomPoints(40, 36, 3000, 17)
+	p, err := New(40, 36, kx, ky, Options{Width: 6, Oversampling: 1.25})
+	if err != nil {
+		t.Fatal(err)
+	}
+	seen := make([]bool, len(kx))
+	for i, s := range p.samples {
+		if seen[s.idx] {
+			t.Fatalf("index %d appears twice", s.idx)
+		}
+		seen[s.idx] = true
+		if i == 0 {
+			continue
+		}
+		a := p.samples[i-1]
+		if a.ox > s.ox || a.ox == s.ox && (a.oy > s.oy || a.oy == s.oy && a.idx >= s.idx) {
+			t.Fatalf("samples %d and %d out of order: %+v then %+v", i-1, i, a, s)
+		}
 	}
 }

@@ -1,7 +1,6 @@
 package nufft
 
 import (
-	"cmp"
 	"fmt"
 	"math"
 	"slices"
@@ -162,9 +161,7 @@ func newPlan(ny, nx int, kx, ky []float64, opts Options, beta float64) (*Plan, e
 		s.wrap = s.ox < 0 || int(s.ox)+w > p.mx || s.oy < 0 || int(s.oy)+w > p.my
 		p.samples[j] = s
 	}
-	slices.SortFunc(p.samples, func(a, b sample) int {
-		return cmp.Or(cmp.Compare(a.ox, b.ox), cmp.Compare(a.oy, b.oy), cmp.Compare(a.idx, b.idx))
-	})
+	p.samples = sortSamples(p.samples, w+1)
 	p.weights = make([]float64, 2*w*len(kx))
 	var buf [MaxWidth]float64
 	for i, s := range p.samples {
@@ -256,6 +253,34 @@ func smooth(m int) bool {
 	return m == 1
 }
 
+// sortSamples returns the samples (given in index order) sorted by (ox, oy,
+// idx), by two stable counting sorts, first on oy and then on ox. Every
+// coordinate is at least −off.
+func sortSamples(in []sample, off int) []sample {
+	byKey := func(dst, src []sample, key func(*sample) int) {
+		hi := 0
+		for i := range src {
+			hi = max(hi, key(&src[i])+off)
+		}
+		count := make([]int, hi+2)
+		for i := range src {
+			count[key(&src[i])+off+1]++
+		}
+		for k := 1; k < len(count); k++ {
+			count[k] += count[k-1]
+		}
+		for i := range src {
+			k := key(&src[i]) + off
+			dst[count[k]] = src[i]
+			count[k]++
+		}
+	}
+	tmp := make([]sample, len(in))
+	byKey(tmp, in, func(s *sample) int { return int(s.oy) })
+	byKey(in, tmp, func(s *sample) int { return int(s.ox) })
+	return in
+}
+
 // wrapIndex returns i mod m in [0, m).
 func wrapIndex(i, m int) int {
 	i %= m
@@ -285,20 +310,37 @@ func deapodisation(k *kernel, n, m int) []float64 {
 }
 
 // buildStrips partitions the grid rows into strips for parallel spreading and
-// lists, for each strip, the samples whose kernel touches it.
+// lists, for each strip, the samples whose kernel touches it. With several
+// workers there are about 8 strips per worker, cut so that each holds about
+// the same number of samples (radial trajectories crowd the centre rows) and
+// is at least W rows high; with one worker there is a single strip.
 func (p *Plan) buildStrips() {
 	w := p.opts.Width
-	nstrips := 1
+	p.stripRow = []int32{0}
 	if p.opts.Workers > 1 {
-		nstrips = 4 * p.opts.Workers
+		perRow := make([]int, p.my)
+		for i := range p.samples {
+			perRow[wrapIndex(int(p.samples[i].oy)+w/2, p.my)]++
+		}
+		target := (len(p.samples) + 8*p.opts.Workers - 1) / (8 * p.opts.Workers)
+		n, h := 0, 0
+		for r, c := range perRow {
+			n += c
+			h++
+			if n >= target && h >= w && p.my-r-1 >= w {
+				p.stripRow = append(p.stripRow, int32(r+1))
+				n, h = 0, 0
+			}
+		}
 	}
-	h := max((p.my+nstrips-1)/nstrips, w)
-	nstrips = (p.my + h - 1) / h
-	p.stripRow = make([]int32, nstrips+1)
-	for s := range nstrips {
-		p.stripRow[s] = int32(s * h)
+	p.stripRow = append(p.stripRow, int32(p.my))
+	nstrips := len(p.stripRow) - 1
+	stripOf := make([]int, p.my)
+	for st := range nstrips {
+		for r := p.stripRow[st]; r < p.stripRow[st+1]; r++ {
+			stripOf[r] = st
+		}
 	}
-	p.stripRow[nstrips] = int32(p.my)
 	p.stripStart = make([]int32, nstrips+1)
 	// touched calls f once for each strip that sample s reaches.
 	var seen [MaxWidth]int
@@ -306,7 +348,7 @@ func (p *Plan) buildStrips() {
 		n := 0
 	rows:
 		for q := range w {
-			st := wrapIndex(int(s.oy)+q, p.my) / h
+			st := stripOf[wrapIndex(int(s.oy)+q, p.my)]
 			for _, v := range seen[:n] {
 				if v == st {
 					continue rows
@@ -320,8 +362,8 @@ func (p *Plan) buildStrips() {
 	for i := range p.samples {
 		touched(&p.samples[i], func(st int) { p.stripStart[st+1]++ })
 	}
-	for s := range nstrips {
-		p.stripStart[s+1] += p.stripStart[s]
+	for st := range nstrips {
+		p.stripStart[st+1] += p.stripStart[st]
 	}
 	p.stripList = make([]int32, p.stripStart[nstrips])
 	fill := slices.Clone(p.stripStart[:nstrips])
