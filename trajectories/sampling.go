@@ -1,6 +1,9 @@
 package trajectories
 
-import "fmt"
+import (
+	"fmt"
+	"math"
+)
 
 // Family names the kind of sampling, which fixes what a shot is and what the
 // fully sampled reference is.
@@ -119,8 +122,34 @@ func (s Sampling) Validate() error {
 	if want := float64(s.FullShots) / float64(s.Shots); s.R != want {
 		return fmt.Errorf("trajectories: R = %g but FullShots/Shots = %g", s.R, want)
 	}
-	if s.Family != FamilyCartesian2D {
+	switch s.Family {
+	case FamilyCartesian2D:
+	case FamilyCartesian3D:
+		if len(s.Mask) != s.Ny*s.Nz {
+			return fmt.Errorf("trajectories: 3D mask has %d entries, want %d×%d = %d", len(s.Mask), s.Nz, s.Ny, s.Ny*s.Nz)
+		}
+		if n := countMask(s.Mask); n != s.Shots {
+			return fmt.Errorf("trajectories: 3D mask has %d points but Shots = %d", n, s.Shots)
+		}
 		return nil
+	case FamilyRadial, FamilySpiral, FamilyIllumination:
+		if s.K == nil && s.Dim == 3 {
+			return nil // 3D illumination sets carry no sample list
+		}
+		if s.ShotLen < 1 || len(s.K) != s.ShotLen*s.Shots {
+			return fmt.Errorf("trajectories: %d samples but %d shots of %d", len(s.K), s.Shots, s.ShotLen)
+		}
+		if len(s.Weights) != len(s.K) {
+			return fmt.Errorf("trajectories: %d weights for %d samples", len(s.Weights), len(s.K))
+		}
+		for i, k := range s.K {
+			if math.IsNaN(k[0]) || math.IsNaN(k[1]) || math.IsInf(k[0], 0) || math.IsInf(k[1], 0) || math.IsNaN(s.Weights[i]) || s.Weights[i] < 0 {
+				return fmt.Errorf("trajectories: sample %d is not finite or has a negative weight", i)
+			}
+		}
+		return nil
+	default:
+		return fmt.Errorf("trajectories: unknown family %q", s.Family)
 	}
 	if len(s.Mask) != s.Nx*s.Ny {
 		return fmt.Errorf("trajectories: mask has %d entries, want %d×%d = %d", len(s.Mask), s.Ny, s.Nx, s.Nx*s.Ny)
@@ -146,4 +175,14 @@ func (s Sampling) Validate() error {
 		}
 	}
 	return nil
+}
+
+func countMask(m []bool) int {
+	n := 0
+	for _, v := range m {
+		if v {
+			n++
+		}
+	}
+	return n
 }
