@@ -49,48 +49,46 @@ func newBluestein(n int) (*bluestein, error) {
 	b.filt = make([]complex128, m)
 	b.filtInv = make([]complex128, m)
 	sc := 1 / float64(m)
-	copy(b.filt, inner.exec(h, tmp, h, 1, false, sc, &wk))
-	copy(b.filtInv, inner.exec(hInv, tmp, hInv, 1, false, sc, &wk))
+	inner.exec(b.filt, h, tmp, h, contiguous(1), false, false, sc, &wk)
+	inner.exec(b.filtInv, hInv, tmp, hInv, contiguous(1), false, false, sc, &wk)
 	return b, nil
 }
 
 func conj(v complex128) complex128 { return complex(real(v), -imag(v)) }
 
-// exec transforms the s0 sequences interleaved in in (see tables.exec) into
-// out, multiplying by scale. buf has length 2·m.
-func (b *bluestein) exec(out, in []complex128, s0 int, inv bool, scale float64, buf []complex128) {
+// exec transforms the s0 sequences of in, laid out as l says (see
+// tables.exec), into out, multiplying by scale. out may be in. wk.blue has
+// length 3·m, wk.gen serves the inner transform.
+func (b *bluestein) exec(out, in []complex128, l layout, inv bool, scale float64, wk *work) {
 	n, m := b.n, b.m
-	u := buf[:m]
-	v := buf[m : 2*m]
+	u := wk.blue[:m]
+	v := wk.blue[m : 2*m]
+	w := wk.blue[2*m : 3*m]
 	filt := b.filt
 	if inv {
 		filt = b.filtInv
 	}
-	wk := work{}
+	inner := work{gen: wk.gen}
 	sc := complex(scale, 0)
-	for c := range s0 {
-		// forward: a[j] = x[j]·conj(b[j]); inverse: x[j]·b[j].
-		for j, w := range b.chirp {
+	for c := range l.s0 {
+		// forward: u[j] = x[j]·conj(b[j]); inverse: x[j]·b[j].
+		for j, bj := range b.chirp {
 			if !inv {
-				w = conj(w)
+				bj = conj(bj)
 			}
-			u[j] = in[j*s0+c] * w
+			u[j] = in[j*l.ldIn+c] * bj
 		}
 		clear(u[n:])
-		r := b.inner.exec(u, v, u, 1, false, 1, &wk)
-		for k := range r {
-			r[k] *= filt[k]
+		b.inner.exec(v, u, w, u, contiguous(1), false, false, 1, &inner)
+		for k := range v {
+			v[k] *= filt[k]
 		}
-		other := u
-		if &r[0] == &u[0] {
-			other = v
-		}
-		r = b.inner.exec(r, other, r, 1, true, 1, &wk)
-		for k, w := range b.chirp {
+		b.inner.exec(u, v, w, v, contiguous(1), true, false, 1, &inner)
+		for k, bk := range b.chirp {
 			if !inv {
-				w = conj(w)
+				bk = conj(bk)
 			}
-			out[k*s0+c] = r[k] * w * sc
+			out[k*l.ldOut+c] = u[k] * bk * sc
 		}
 	}
 }

@@ -2,269 +2,509 @@ package fft
 
 // Butterflies of the self-sorting decimation-in-frequency passes.
 //
-// A pass of radix r over data x of length r·m·s reads, for each p < m and
-// q < s, the r inputs x[q + s·(p + k·m)], k < r, forms their length-r DFT v_i
-// and writes y[q + s·(r·p + i)] = v_i · w^(i·p), w = exp(-2πi/(r·m)). The
-// inverse pass uses the conjugate roots: since its butterfly output i equals
-// the forward output (r-i) mod r, the same code writes v_i to position
-// (r-i) mod r, and the inverse twiddle table is stored in that output order.
-// The last pass has m = 1, needs no twiddles and applies the overall scale.
+// A pass of radix r over a span of r·m values reads, for each group p and
+// each q < s, the r inputs with stride m, forms their length-r DFT v_i and
+// writes v_i · w^(i·p), w = exp(-2πi/(r·m)), to output slot i of the group
+// (Stockham's self-sorting order, so no bit-reversal pass is needed). Where
+// the runs lie is given by a geom (see tables.go), which also carries the
+// slot permutations: the inverse pass uses the conjugate roots, and since its
+// butterfly output i equals the forward output (r-i) mod r, the same code
+// writes v_i to slot (r-i) mod r with the inverse twiddle table stored in that
+// order; the centred transform rotates slots by r/2. The last pass has m = 1,
+// needs no twiddles and applies the overall scale.
+//
+// Twiddles are stored as interleaved float64 pairs, tw[2·((r-1)·p+i-1)] =
+// Re w_i, tw[2·((r-1)·p+i-1)+1] = Im w_i, read by constant offsets from one
+// base. The arithmetic is written on real and imaginary parts and ordered so
+// that each output is stored as soon as it is ready, which keeps register
+// pressure low. Every butterfly reads all its inputs before its first store,
+// so a pass may write over its own input.
 
 const (
-	sin60  = 0.86602540378443864676372317075293618 // sin(π/3)
-	cos72  = 0.30901699437494742410229341718281906 // cos(2π/5)
-	cos144 = -0.80901699437494742410229341718281906
-	sin72  = 0.95105651629515357211643933337938214 // sin(2π/5)
-	sin144 = 0.58778525229247312916870595463907277 // sin(4π/5)
+	sin60  = 0.86602540378443864676372317075293618  // sin(π/3)
+	cos72  = 0.30901699437494742410229341718281906  // cos(2π/5)
+	cos144 = -0.80901699437494742410229341718281906 // cos(4π/5)
+	sin72  = 0.95105651629515357211643933337938214  // sin(2π/5)
+	sin144 = 0.58778525229247312916870595463907277  // sin(4π/5)
+	sqrtH  = 0.70710678118654752440084436210484903  // √½
 )
 
-// mulNegI returns -i·v.
-func mulNegI(v complex128) complex128 { return complex(imag(v), -real(v)) }
-
-// ---- radix 2 ----
-
-func r2(y, x, tw []complex128, m, s int) {
-	ms := m * s
-	x0, x1 := x[:ms], x[ms:2*ms]
-	tw = tw[:m]
-	for p, w := range tw {
-		ps := p * s
-		a := x0[ps : ps+s]
-		b := x1[ps : ps+s]
-		o := y[2*ps : 2*ps+2*s]
-		y0 := o[:s]
-		y1 := o[s : 2*s]
-		b = b[:len(a)]
-		y0 = y0[:len(a)]
-		y1 = y1[:len(a)]
-		for q, u := range a {
-			v := b[q]
-			y0[q] = u + v
-			y1[q] = (u - v) * w
-		}
-	}
-}
-
-func r2last(y, x []complex128, s int, scale float64) {
-	a := x[:s]
-	b := x[s : 2*s]
-	y0 := y[:s]
-	y1 := y[s : 2*s]
-	sc := complex(scale, 0)
-	for q, u := range a {
-		v := b[q]
-		y0[q] = (u + v) * sc
-		y1[q] = (u - v) * sc
-	}
-}
-
-// ---- radix 4 ----
-
-// bfly4 is the forward 4-point DFT.
-func bfly4(a, b, c, d complex128) (v0, v1, v2, v3 complex128) {
-	t0, t1 := a+c, a-c
-	t2, t3 := b+d, mulNegI(b-d)
-	return t0 + t2, t1 + t3, t0 - t2, t1 - t3
-}
-
-func r4(y, x, tw []complex128, m, s int, inv bool) {
-	ms := m * s
-	x0, x1, x2, x3 := x[:ms], x[ms:2*ms], x[2*ms:3*ms], x[3*ms:4*ms]
-	o1, o3 := s, 3*s
-	if inv {
-		o1, o3 = o3, o1
-	}
-	for p := range m {
-		w := tw[3*p : 3*p+3 : 3*p+3]
-		w1, w2, w3 := w[0], w[1], w[2]
-		ps := p * s
-		a := x0[ps : ps+s]
-		b := x1[ps : ps+s]
-		c := x2[ps : ps+s]
-		d := x3[ps : ps+s]
-		base := 4 * ps
-		y0 := y[base : base+s]
-		y1 := y[base+o1 : base+o1+s]
-		y2 := y[base+2*s : base+3*s]
-		y3 := y[base+o3 : base+o3+s]
-		b, c, d = b[:len(a)], c[:len(a)], d[:len(a)]
-		y0, y1, y2, y3 = y0[:len(a)], y1[:len(a)], y2[:len(a)], y3[:len(a)]
-		for q := range a {
-			v0, v1, v2, v3 := bfly4(a[q], b[q], c[q], d[q])
-			y0[q] = v0
-			y1[q] = v1 * w1
-			y2[q] = v2 * w2
-			y3[q] = v3 * w3
-		}
-	}
-}
-
-// r4s1 is r4 for stride 1, where each butterfly has its own twiddles.
-func r4s1(y, x, tw []complex128, m int, inv bool) {
-	x0, x1, x2, x3 := x[:m], x[m:2*m], x[2*m:3*m], x[3*m:4*m]
-	x1, x2, x3 = x1[:len(x0)], x2[:len(x0)], x3[:len(x0)]
-	i1, i3 := 1, 3
-	if inv {
-		i1, i3 = 3, 1
-	}
-	for p := range x0 {
-		v0, v1, v2, v3 := bfly4(x0[p], x1[p], x2[p], x3[p])
-		w := tw[3*p : 3*p+3 : 3*p+3]
-		o := y[4*p : 4*p+4 : 4*p+4]
-		o[0] = v0
-		o[i1&3] = v1 * w[0]
-		o[2] = v2 * w[1]
-		o[i3&3] = v3 * w[2]
-	}
-}
-
-func r4last(y, x []complex128, s int, inv bool, scale float64) {
-	a, b, c, d := x[:s], x[s:2*s], x[2*s:3*s], x[3*s:4*s]
-	y0, y1, y2, y3 := y[:s], y[s:2*s], y[2*s:3*s], y[3*s:4*s]
-	if inv {
-		y1, y3 = y3, y1
-	}
-	b, c, d = b[:len(a)], c[:len(a)], d[:len(a)]
-	y0, y1, y2, y3 = y0[:len(a)], y1[:len(a)], y2[:len(a)], y3[:len(a)]
-	sc := complex(scale, 0)
-	for q := range a {
-		v0, v1, v2, v3 := bfly4(a[q], b[q], c[q], d[q])
-		y0[q] = v0 * sc
-		y1[q] = v1 * sc
-		y2[q] = v2 * sc
-		y3[q] = v3 * sc
-	}
-}
-
-// ---- radix 3 ----
-
-// bfly3 is the forward 3-point DFT.
-func bfly3(a, b, c complex128) (v0, v1, v2 complex128) {
-	t1 := b + c
-	t2 := a - t1*0.5
-	t3 := mulNegI(b-c) * sin60
-	return a + t1, t2 + t3, t2 - t3
-}
-
-func r3(y, x, tw []complex128, m, s int, inv bool) {
-	ms := m * s
-	x0, x1, x2 := x[:ms], x[ms:2*ms], x[2*ms:3*ms]
-	o1, o2 := s, 2*s
-	if inv {
-		o1, o2 = o2, o1
-	}
-	for p := range m {
+// r2 is the radix-2 pass: v0 = x0 + x1, v1 = x0 - x1.
+func r2(y, x []complex128, tw []float64, g *geom) {
+	s := g.s
+	for p := range g.m {
 		w := tw[2*p : 2*p+2 : 2*p+2]
-		w1, w2 := w[0], w[1]
-		ps := p * s
-		a := x0[ps : ps+s]
-		b := x1[ps : ps+s]
-		c := x2[ps : ps+s]
-		base := 3 * ps
-		y0 := y[base : base+s]
-		y1 := y[base+o1 : base+o1+s]
-		y2 := y[base+o2 : base+o2+s]
-		b, c = b[:len(a)], c[:len(a)]
-		y0, y1, y2 = y0[:len(a)], y1[:len(a)], y2[:len(a)]
-		for q := range a {
-			v0, v1, v2 := bfly3(a[q], b[q], c[q])
-			y0[q] = v0
-			y1[q] = v1 * w1
-			y2[q] = v2 * w2
+		xb, yb := p*g.xstep, p*g.ystep
+		x0 := x[xb+g.xo[0] : xb+g.xo[0]+s]
+		x1 := x[xb+g.xo[1] : xb+g.xo[1]+s][:len(x0)]
+		y0 := y[yb+g.yo[0] : yb+g.yo[0]+s][:len(x0)]
+		y1 := y[yb+g.yo[1] : yb+g.yo[1]+s][:len(x0)]
+		for q := range x0 {
+			u, v := x0[q], x1[q]
+			vr, vi := real(u)+real(v), imag(u)+imag(v)
+			y0[q] = complex(vr, vi)
+			vr, vi = real(u)-real(v), imag(u)-imag(v)
+			y1[q] = complex(vr*w[0]-vi*w[1], vr*w[1]+vi*w[0])
 		}
 	}
 }
 
-func r3last(y, x []complex128, s int, inv bool, scale float64) {
-	a, b, c := x[:s], x[s:2*s], x[2*s:3*s]
-	y0, y1, y2 := y[:s], y[s:2*s], y[2*s:3*s]
-	if inv {
-		y1, y2 = y2, y1
-	}
-	b, c = b[:len(a)], c[:len(a)]
-	y0, y1, y2 = y0[:len(a)], y1[:len(a)], y2[:len(a)]
-	sc := complex(scale, 0)
-	for q := range a {
-		v0, v1, v2 := bfly3(a[q], b[q], c[q])
-		y0[q] = v0 * sc
-		y1[q] = v1 * sc
-		y2[q] = v2 * sc
+// r2last is the last radix-2 pass: no twiddles, outputs times scale.
+func r2last(y, x []complex128, g *geom, scale float64) {
+	s := g.s
+	for p := range g.m {
+		xb, yb := p*g.xstep, p*g.ystep
+		x0 := x[xb+g.xo[0] : xb+g.xo[0]+s]
+		x1 := x[xb+g.xo[1] : xb+g.xo[1]+s][:len(x0)]
+		y0 := y[yb+g.yo[0] : yb+g.yo[0]+s][:len(x0)]
+		y1 := y[yb+g.yo[1] : yb+g.yo[1]+s][:len(x0)]
+		for q := range x0 {
+			u, v := x0[q], x1[q]
+			vr, vi := real(u)+real(v), imag(u)+imag(v)
+			y0[q] = complex(vr*scale, vi*scale)
+			vr, vi = real(u)-real(v), imag(u)-imag(v)
+			y1[q] = complex(vr*scale, vi*scale)
+		}
 	}
 }
 
-// ---- radix 5 ----
-
-// bfly5 is the forward 5-point DFT.
-func bfly5(x0, x1, x2, x3, x4 complex128) (v0, v1, v2, v3, v4 complex128) {
-	a1, a2 := x1+x4, x2+x3
-	b1, b2 := x1-x4, x2-x3
-	r1 := x0 + a1*cos72 + a2*cos144
-	r2 := x0 + a1*cos144 + a2*cos72
-	i1 := mulNegI(b1*sin72 + b2*sin144)
-	i2 := mulNegI(b1*sin144 - b2*sin72)
-	return x0 + a1 + a2, r1 + i1, r2 + i2, r2 - i2, r1 - i1
-}
-
-func r5(y, x, tw []complex128, m, s int, inv bool) {
-	ms := m * s
-	x0, x1, x2, x3, x4 := x[:ms], x[ms:2*ms], x[2*ms:3*ms], x[3*ms:4*ms], x[4*ms:5*ms]
-	o1, o2, o3, o4 := s, 2*s, 3*s, 4*s
-	if inv {
-		o1, o2, o3, o4 = o4, o3, o2, o1
-	}
-	for p := range m {
+// r3 is the radix-3 pass: with t = x1 + x2, v0 = x0 + t and
+// v1, v2 = x0 - t/2 ∓ i·sin(π/3)·(x1 - x2).
+func r3(y, x []complex128, tw []float64, g *geom) {
+	s := g.s
+	for p := range g.m {
 		w := tw[4*p : 4*p+4 : 4*p+4]
-		w1, w2, w3, w4 := w[0], w[1], w[2], w[3]
-		ps := p * s
-		a := x0[ps : ps+s]
-		b := x1[ps : ps+s]
-		c := x2[ps : ps+s]
-		d := x3[ps : ps+s]
-		e := x4[ps : ps+s]
-		base := 5 * ps
-		y0 := y[base : base+s]
-		y1 := y[base+o1 : base+o1+s]
-		y2 := y[base+o2 : base+o2+s]
-		y3 := y[base+o3 : base+o3+s]
-		y4 := y[base+o4 : base+o4+s]
-		b, c, d, e = b[:len(a)], c[:len(a)], d[:len(a)], e[:len(a)]
-		y0, y1, y2, y3, y4 = y0[:len(a)], y1[:len(a)], y2[:len(a)], y3[:len(a)], y4[:len(a)]
-		for q := range a {
-			v0, v1, v2, v3, v4 := bfly5(a[q], b[q], c[q], d[q], e[q])
-			y0[q] = v0
-			y1[q] = v1 * w1
-			y2[q] = v2 * w2
-			y3[q] = v3 * w3
-			y4[q] = v4 * w4
+		xb, yb := p*g.xstep, p*g.ystep
+		x0 := x[xb+g.xo[0] : xb+g.xo[0]+s]
+		x1 := x[xb+g.xo[1] : xb+g.xo[1]+s][:len(x0)]
+		x2 := x[xb+g.xo[2] : xb+g.xo[2]+s][:len(x0)]
+		y0 := y[yb+g.yo[0] : yb+g.yo[0]+s][:len(x0)]
+		y1 := y[yb+g.yo[1] : yb+g.yo[1]+s][:len(x0)]
+		y2 := y[yb+g.yo[2] : yb+g.yo[2]+s][:len(x0)]
+		for q := range x0 {
+			a := x0[q]
+			u, v := x1[q], x2[q]
+			t1r, t1i := real(u)+real(v), imag(u)+imag(v)
+			t3r, t3i := sin60*(imag(u)-imag(v)), sin60*(real(v)-real(u))
+			vr, vi := real(a)+t1r, imag(a)+t1i
+			y0[q] = complex(vr, vi)
+			t2r, t2i := real(a)-0.5*t1r, imag(a)-0.5*t1i
+			vr, vi = t2r+t3r, t2i+t3i
+			y1[q] = complex(vr*w[0]-vi*w[1], vr*w[1]+vi*w[0])
+			vr, vi = t2r-t3r, t2i-t3i
+			y2[q] = complex(vr*w[2]-vi*w[3], vr*w[3]+vi*w[2])
 		}
 	}
 }
 
-func r5last(y, x []complex128, s int, inv bool, scale float64) {
-	a, b, c, d, e := x[:s], x[s:2*s], x[2*s:3*s], x[3*s:4*s], x[4*s:5*s]
-	y0, y1, y2, y3, y4 := y[:s], y[s:2*s], y[2*s:3*s], y[3*s:4*s], y[4*s:5*s]
-	if inv {
-		y1, y2, y3, y4 = y4, y3, y2, y1
+// r3last is the last radix-3 pass: no twiddles, outputs times scale.
+func r3last(y, x []complex128, g *geom, scale float64) {
+	s := g.s
+	for p := range g.m {
+		xb, yb := p*g.xstep, p*g.ystep
+		x0 := x[xb+g.xo[0] : xb+g.xo[0]+s]
+		x1 := x[xb+g.xo[1] : xb+g.xo[1]+s][:len(x0)]
+		x2 := x[xb+g.xo[2] : xb+g.xo[2]+s][:len(x0)]
+		y0 := y[yb+g.yo[0] : yb+g.yo[0]+s][:len(x0)]
+		y1 := y[yb+g.yo[1] : yb+g.yo[1]+s][:len(x0)]
+		y2 := y[yb+g.yo[2] : yb+g.yo[2]+s][:len(x0)]
+		for q := range x0 {
+			a := x0[q]
+			u, v := x1[q], x2[q]
+			t1r, t1i := real(u)+real(v), imag(u)+imag(v)
+			t3r, t3i := sin60*(imag(u)-imag(v)), sin60*(real(v)-real(u))
+			vr, vi := real(a)+t1r, imag(a)+t1i
+			y0[q] = complex(vr*scale, vi*scale)
+			t2r, t2i := real(a)-0.5*t1r, imag(a)-0.5*t1i
+			vr, vi = t2r+t3r, t2i+t3i
+			y1[q] = complex(vr*scale, vi*scale)
+			vr, vi = t2r-t3r, t2i-t3i
+			y2[q] = complex(vr*scale, vi*scale)
+		}
 	}
-	b, c, d, e = b[:len(a)], c[:len(a)], d[:len(a)], e[:len(a)]
-	y0, y1, y2, y3, y4 = y0[:len(a)], y1[:len(a)], y2[:len(a)], y3[:len(a)], y4[:len(a)]
-	sc := complex(scale, 0)
-	for q := range a {
-		v0, v1, v2, v3, v4 := bfly5(a[q], b[q], c[q], d[q], e[q])
-		y0[q] = v0 * sc
-		y1[q] = v1 * sc
-		y2[q] = v2 * sc
-		y3[q] = v3 * sc
-		y4[q] = v4 * sc
+}
+
+// r4 is the radix-4 pass: two radix-2 layers, the odd difference rotated by -i.
+func r4(y, x []complex128, tw []float64, g *geom) {
+	s := g.s
+	for p := range g.m {
+		w := tw[6*p : 6*p+6 : 6*p+6]
+		xb, yb := p*g.xstep, p*g.ystep
+		x0 := x[xb+g.xo[0] : xb+g.xo[0]+s]
+		x1 := x[xb+g.xo[1] : xb+g.xo[1]+s][:len(x0)]
+		x2 := x[xb+g.xo[2] : xb+g.xo[2]+s][:len(x0)]
+		x3 := x[xb+g.xo[3] : xb+g.xo[3]+s][:len(x0)]
+		y0 := y[yb+g.yo[0] : yb+g.yo[0]+s][:len(x0)]
+		y1 := y[yb+g.yo[1] : yb+g.yo[1]+s][:len(x0)]
+		y2 := y[yb+g.yo[2] : yb+g.yo[2]+s][:len(x0)]
+		y3 := y[yb+g.yo[3] : yb+g.yo[3]+s][:len(x0)]
+		for q := range x0 {
+			u, v := x0[q], x2[q]
+			t0r, t0i := real(u)+real(v), imag(u)+imag(v)
+			t1r, t1i := real(u)-real(v), imag(u)-imag(v)
+			u, v = x1[q], x3[q]
+			t2r, t2i := real(u)+real(v), imag(u)+imag(v)
+			t3r, t3i := real(u)-real(v), imag(u)-imag(v)
+			vr, vi := t0r+t2r, t0i+t2i
+			y0[q] = complex(vr, vi)
+			vr, vi = t0r-t2r, t0i-t2i
+			y2[q] = complex(vr*w[2]-vi*w[3], vr*w[3]+vi*w[2])
+			vr, vi = t1r+t3i, t1i-t3r
+			y1[q] = complex(vr*w[0]-vi*w[1], vr*w[1]+vi*w[0])
+			vr, vi = t1r-t3i, t1i+t3r
+			y3[q] = complex(vr*w[4]-vi*w[5], vr*w[5]+vi*w[4])
+		}
+	}
+}
+
+// r4last is the last radix-4 pass: no twiddles, outputs times scale.
+func r4last(y, x []complex128, g *geom, scale float64) {
+	s := g.s
+	for p := range g.m {
+		xb, yb := p*g.xstep, p*g.ystep
+		x0 := x[xb+g.xo[0] : xb+g.xo[0]+s]
+		x1 := x[xb+g.xo[1] : xb+g.xo[1]+s][:len(x0)]
+		x2 := x[xb+g.xo[2] : xb+g.xo[2]+s][:len(x0)]
+		x3 := x[xb+g.xo[3] : xb+g.xo[3]+s][:len(x0)]
+		y0 := y[yb+g.yo[0] : yb+g.yo[0]+s][:len(x0)]
+		y1 := y[yb+g.yo[1] : yb+g.yo[1]+s][:len(x0)]
+		y2 := y[yb+g.yo[2] : yb+g.yo[2]+s][:len(x0)]
+		y3 := y[yb+g.yo[3] : yb+g.yo[3]+s][:len(x0)]
+		for q := range x0 {
+			u, v := x0[q], x2[q]
+			t0r, t0i := real(u)+real(v), imag(u)+imag(v)
+			t1r, t1i := real(u)-real(v), imag(u)-imag(v)
+			u, v = x1[q], x3[q]
+			t2r, t2i := real(u)+real(v), imag(u)+imag(v)
+			t3r, t3i := real(u)-real(v), imag(u)-imag(v)
+			vr, vi := t0r+t2r, t0i+t2i
+			y0[q] = complex(vr*scale, vi*scale)
+			vr, vi = t0r-t2r, t0i-t2i
+			y2[q] = complex(vr*scale, vi*scale)
+			vr, vi = t1r+t3i, t1i-t3r
+			y1[q] = complex(vr*scale, vi*scale)
+			vr, vi = t1r-t3i, t1i+t3r
+			y3[q] = complex(vr*scale, vi*scale)
+		}
+	}
+}
+
+// r4s1 is r4 for s = 1 (first pass of a single sequence), where every
+// butterfly has its own twiddles and writes 4 adjacent outputs.
+func r4s1(y, x []complex128, tw []float64, g *geom) {
+	m := g.m
+	x0 := x[g.xo[0] : g.xo[0]+m]
+	x1 := x[g.xo[1] : g.xo[1]+m][:len(x0)]
+	x2 := x[g.xo[2] : g.xo[2]+m][:len(x0)]
+	x3 := x[g.xo[3] : g.xo[3]+m][:len(x0)]
+	p1 := g.yo[1] & 3
+	p2 := g.yo[2] & 3
+	p3 := g.yo[3] & 3
+	for p := range x0 {
+		w := tw[6*p : 6*p+6 : 6*p+6]
+		o := y[4*p : 4*p+4 : 4*p+4]
+		u, v := x0[p], x2[p]
+		t0r, t0i := real(u)+real(v), imag(u)+imag(v)
+		t1r, t1i := real(u)-real(v), imag(u)-imag(v)
+		u, v = x1[p], x3[p]
+		t2r, t2i := real(u)+real(v), imag(u)+imag(v)
+		t3r, t3i := real(u)-real(v), imag(u)-imag(v)
+		vr, vi := t0r+t2r, t0i+t2i
+		o[0] = complex(vr, vi)
+		vr, vi = t0r-t2r, t0i-t2i
+		o[p2] = complex(vr*w[2]-vi*w[3], vr*w[3]+vi*w[2])
+		vr, vi = t1r+t3i, t1i-t3r
+		o[p1] = complex(vr*w[0]-vi*w[1], vr*w[1]+vi*w[0])
+		vr, vi = t1r-t3i, t1i+t3r
+		o[p3] = complex(vr*w[4]-vi*w[5], vr*w[5]+vi*w[4])
+	}
+}
+
+// r5 is the radix-5 pass in the symmetric form: with a_k = x_k + x_(5-k) and
+// b_k = x_k - x_(5-k), v_j = x0 + Σ a_k cos(2πjk/5) - i Σ b_k sin(2πjk/5).
+func r5(y, x []complex128, tw []float64, g *geom) {
+	s := g.s
+	for p := range g.m {
+		w := tw[8*p : 8*p+8 : 8*p+8]
+		xb, yb := p*g.xstep, p*g.ystep
+		x0 := x[xb+g.xo[0] : xb+g.xo[0]+s]
+		x1 := x[xb+g.xo[1] : xb+g.xo[1]+s][:len(x0)]
+		x2 := x[xb+g.xo[2] : xb+g.xo[2]+s][:len(x0)]
+		x3 := x[xb+g.xo[3] : xb+g.xo[3]+s][:len(x0)]
+		x4 := x[xb+g.xo[4] : xb+g.xo[4]+s][:len(x0)]
+		y0 := y[yb+g.yo[0] : yb+g.yo[0]+s][:len(x0)]
+		y1 := y[yb+g.yo[1] : yb+g.yo[1]+s][:len(x0)]
+		y2 := y[yb+g.yo[2] : yb+g.yo[2]+s][:len(x0)]
+		y3 := y[yb+g.yo[3] : yb+g.yo[3]+s][:len(x0)]
+		y4 := y[yb+g.yo[4] : yb+g.yo[4]+s][:len(x0)]
+		for q := range x0 {
+			a := x0[q]
+			x0r, x0i := real(a), imag(a)
+			u, v := x1[q], x4[q]
+			a1r, a1i := real(u)+real(v), imag(u)+imag(v)
+			b1r, b1i := real(u)-real(v), imag(u)-imag(v)
+			u, v = x2[q], x3[q]
+			a2r, a2i := real(u)+real(v), imag(u)+imag(v)
+			b2r, b2i := real(u)-real(v), imag(u)-imag(v)
+			vr, vi := x0r+a1r+a2r, x0i+a1i+a2i
+			y0[q] = complex(vr, vi)
+			r1r, r1i := x0r+cos72*a1r+cos144*a2r, x0i+cos72*a1i+cos144*a2i
+			i1r, i1i := sin72*b1i+sin144*b2i, -(sin72*b1r + sin144*b2r)
+			vr, vi = r1r+i1r, r1i+i1i
+			y1[q] = complex(vr*w[0]-vi*w[1], vr*w[1]+vi*w[0])
+			vr, vi = r1r-i1r, r1i-i1i
+			y4[q] = complex(vr*w[6]-vi*w[7], vr*w[7]+vi*w[6])
+			r2r, r2i := x0r+cos144*a1r+cos72*a2r, x0i+cos144*a1i+cos72*a2i
+			i2r, i2i := sin144*b1i-sin72*b2i, sin72*b2r-sin144*b1r
+			vr, vi = r2r+i2r, r2i+i2i
+			y2[q] = complex(vr*w[2]-vi*w[3], vr*w[3]+vi*w[2])
+			vr, vi = r2r-i2r, r2i-i2i
+			y3[q] = complex(vr*w[4]-vi*w[5], vr*w[5]+vi*w[4])
+		}
+	}
+}
+
+// r5last is the last radix-5 pass: no twiddles, outputs times scale.
+func r5last(y, x []complex128, g *geom, scale float64) {
+	s := g.s
+	for p := range g.m {
+		xb, yb := p*g.xstep, p*g.ystep
+		x0 := x[xb+g.xo[0] : xb+g.xo[0]+s]
+		x1 := x[xb+g.xo[1] : xb+g.xo[1]+s][:len(x0)]
+		x2 := x[xb+g.xo[2] : xb+g.xo[2]+s][:len(x0)]
+		x3 := x[xb+g.xo[3] : xb+g.xo[3]+s][:len(x0)]
+		x4 := x[xb+g.xo[4] : xb+g.xo[4]+s][:len(x0)]
+		y0 := y[yb+g.yo[0] : yb+g.yo[0]+s][:len(x0)]
+		y1 := y[yb+g.yo[1] : yb+g.yo[1]+s][:len(x0)]
+		y2 := y[yb+g.yo[2] : yb+g.yo[2]+s][:len(x0)]
+		y3 := y[yb+g.yo[3] : yb+g.yo[3]+s][:len(x0)]
+		y4 := y[yb+g.yo[4] : yb+g.yo[4]+s][:len(x0)]
+		for q := range x0 {
+			a := x0[q]
+			x0r, x0i := real(a), imag(a)
+			u, v := x1[q], x4[q]
+			a1r, a1i := real(u)+real(v), imag(u)+imag(v)
+			b1r, b1i := real(u)-real(v), imag(u)-imag(v)
+			u, v = x2[q], x3[q]
+			a2r, a2i := real(u)+real(v), imag(u)+imag(v)
+			b2r, b2i := real(u)-real(v), imag(u)-imag(v)
+			vr, vi := x0r+a1r+a2r, x0i+a1i+a2i
+			y0[q] = complex(vr*scale, vi*scale)
+			r1r, r1i := x0r+cos72*a1r+cos144*a2r, x0i+cos72*a1i+cos144*a2i
+			i1r, i1i := sin72*b1i+sin144*b2i, -(sin72*b1r + sin144*b2r)
+			vr, vi = r1r+i1r, r1i+i1i
+			y1[q] = complex(vr*scale, vi*scale)
+			vr, vi = r1r-i1r, r1i-i1i
+			y4[q] = complex(vr*scale, vi*scale)
+			r2r, r2i := x0r+cos144*a1r+cos72*a2r, x0i+cos144*a1i+cos72*a2i
+			i2r, i2i := sin144*b1i-sin72*b2i, sin72*b2r-sin144*b1r
+			vr, vi = r2r+i2r, r2i+i2i
+			y2[q] = complex(vr*scale, vi*scale)
+			vr, vi = r2r-i2r, r2i-i2i
+			y3[q] = complex(vr*scale, vi*scale)
+		}
+	}
+}
+
+// r8 is the radix-8 pass: two 4-point DFTs, of the sums x_k + x_(k+4) (even
+// outputs) and of the differences x_k - x_(k+4) rotated by exp(-iπk/4)
+// (odd outputs).
+func r8(y, x []complex128, tw []float64, g *geom) {
+	s := g.s
+	for p := range g.m {
+		w := tw[14*p : 14*p+14 : 14*p+14]
+		xb, yb := p*g.xstep, p*g.ystep
+		x0 := x[xb+g.xo[0] : xb+g.xo[0]+s]
+		x1 := x[xb+g.xo[1] : xb+g.xo[1]+s][:len(x0)]
+		x2 := x[xb+g.xo[2] : xb+g.xo[2]+s][:len(x0)]
+		x3 := x[xb+g.xo[3] : xb+g.xo[3]+s][:len(x0)]
+		x4 := x[xb+g.xo[4] : xb+g.xo[4]+s][:len(x0)]
+		x5 := x[xb+g.xo[5] : xb+g.xo[5]+s][:len(x0)]
+		x6 := x[xb+g.xo[6] : xb+g.xo[6]+s][:len(x0)]
+		x7 := x[xb+g.xo[7] : xb+g.xo[7]+s][:len(x0)]
+		y0 := y[yb+g.yo[0] : yb+g.yo[0]+s][:len(x0)]
+		y1 := y[yb+g.yo[1] : yb+g.yo[1]+s][:len(x0)]
+		y2 := y[yb+g.yo[2] : yb+g.yo[2]+s][:len(x0)]
+		y3 := y[yb+g.yo[3] : yb+g.yo[3]+s][:len(x0)]
+		y4 := y[yb+g.yo[4] : yb+g.yo[4]+s][:len(x0)]
+		y5 := y[yb+g.yo[5] : yb+g.yo[5]+s][:len(x0)]
+		y6 := y[yb+g.yo[6] : yb+g.yo[6]+s][:len(x0)]
+		y7 := y[yb+g.yo[7] : yb+g.yo[7]+s][:len(x0)]
+		for q := range x0 {
+			u, v := x0[q], x4[q]
+			a0r, a0i := real(u)+real(v), imag(u)+imag(v)
+			a4r, a4i := real(u)-real(v), imag(u)-imag(v)
+			u, v = x2[q], x6[q]
+			a2r, a2i := real(u)+real(v), imag(u)+imag(v)
+			a6r, a6i := real(u)-real(v), imag(u)-imag(v)
+			u, v = x1[q], x5[q]
+			a1r, a1i := real(u)+real(v), imag(u)+imag(v)
+			a5r, a5i := real(u)-real(v), imag(u)-imag(v)
+			u, v = x3[q], x7[q]
+			a3r, a3i := real(u)+real(v), imag(u)+imag(v)
+			a7r, a7i := real(u)-real(v), imag(u)-imag(v)
+			b0r, b0i := a0r+a2r, a0i+a2i
+			b2r, b2i := a0r-a2r, a0i-a2i
+			b1r, b1i := a1r+a3r, a1i+a3i
+			b3r, b3i := a1i-a3i, a3r-a1r
+			vr, vi := b0r+b1r, b0i+b1i
+			y0[q] = complex(vr, vi)
+			vr, vi = b0r-b1r, b0i-b1i
+			y4[q] = complex(vr*w[6]-vi*w[7], vr*w[7]+vi*w[6])
+			vr, vi = b2r+b3r, b2i+b3i
+			y2[q] = complex(vr*w[2]-vi*w[3], vr*w[3]+vi*w[2])
+			vr, vi = b2r-b3r, b2i-b3i
+			y6[q] = complex(vr*w[10]-vi*w[11], vr*w[11]+vi*w[10])
+			er, ei := a5r-a7r, a5i-a7i
+			fr, fi := a5r+a7r, a5i+a7i
+			d1r, d1i := (er+fi)*sqrtH, (ei-fr)*sqrtH
+			d3r, d3i := (fi-er)*sqrtH, -(ei+fr)*sqrtH
+			d0r, d0i := a4r+a6i, a4i-a6r
+			d2r, d2i := a4r-a6i, a4i+a6r
+			vr, vi = d0r+d1r, d0i+d1i
+			y1[q] = complex(vr*w[0]-vi*w[1], vr*w[1]+vi*w[0])
+			vr, vi = d0r-d1r, d0i-d1i
+			y5[q] = complex(vr*w[8]-vi*w[9], vr*w[9]+vi*w[8])
+			vr, vi = d2r+d3r, d2i+d3i
+			y3[q] = complex(vr*w[4]-vi*w[5], vr*w[5]+vi*w[4])
+			vr, vi = d2r-d3r, d2i-d3i
+			y7[q] = complex(vr*w[12]-vi*w[13], vr*w[13]+vi*w[12])
+		}
+	}
+}
+
+// r8last is the last radix-8 pass: no twiddles, outputs times scale.
+func r8last(y, x []complex128, g *geom, scale float64) {
+	s := g.s
+	for p := range g.m {
+		xb, yb := p*g.xstep, p*g.ystep
+		x0 := x[xb+g.xo[0] : xb+g.xo[0]+s]
+		x1 := x[xb+g.xo[1] : xb+g.xo[1]+s][:len(x0)]
+		x2 := x[xb+g.xo[2] : xb+g.xo[2]+s][:len(x0)]
+		x3 := x[xb+g.xo[3] : xb+g.xo[3]+s][:len(x0)]
+		x4 := x[xb+g.xo[4] : xb+g.xo[4]+s][:len(x0)]
+		x5 := x[xb+g.xo[5] : xb+g.xo[5]+s][:len(x0)]
+		x6 := x[xb+g.xo[6] : xb+g.xo[6]+s][:len(x0)]
+		x7 := x[xb+g.xo[7] : xb+g.xo[7]+s][:len(x0)]
+		y0 := y[yb+g.yo[0] : yb+g.yo[0]+s][:len(x0)]
+		y1 := y[yb+g.yo[1] : yb+g.yo[1]+s][:len(x0)]
+		y2 := y[yb+g.yo[2] : yb+g.yo[2]+s][:len(x0)]
+		y3 := y[yb+g.yo[3] : yb+g.yo[3]+s][:len(x0)]
+		y4 := y[yb+g.yo[4] : yb+g.yo[4]+s][:len(x0)]
+		y5 := y[yb+g.yo[5] : yb+g.yo[5]+s][:len(x0)]
+		y6 := y[yb+g.yo[6] : yb+g.yo[6]+s][:len(x0)]
+		y7 := y[yb+g.yo[7] : yb+g.yo[7]+s][:len(x0)]
+		for q := range x0 {
+			u, v := x0[q], x4[q]
+			a0r, a0i := real(u)+real(v), imag(u)+imag(v)
+			a4r, a4i := real(u)-real(v), imag(u)-imag(v)
+			u, v = x2[q], x6[q]
+			a2r, a2i := real(u)+real(v), imag(u)+imag(v)
+			a6r, a6i := real(u)-real(v), imag(u)-imag(v)
+			u, v = x1[q], x5[q]
+			a1r, a1i := real(u)+real(v), imag(u)+imag(v)
+			a5r, a5i := real(u)-real(v), imag(u)-imag(v)
+			u, v = x3[q], x7[q]
+			a3r, a3i := real(u)+real(v), imag(u)+imag(v)
+			a7r, a7i := real(u)-real(v), imag(u)-imag(v)
+			b0r, b0i := a0r+a2r, a0i+a2i
+			b2r, b2i := a0r-a2r, a0i-a2i
+			b1r, b1i := a1r+a3r, a1i+a3i
+			b3r, b3i := a1i-a3i, a3r-a1r
+			vr, vi := b0r+b1r, b0i+b1i
+			y0[q] = complex(vr*scale, vi*scale)
+			vr, vi = b0r-b1r, b0i-b1i
+			y4[q] = complex(vr*scale, vi*scale)
+			vr, vi = b2r+b3r, b2i+b3i
+			y2[q] = complex(vr*scale, vi*scale)
+			vr, vi = b2r-b3r, b2i-b3i
+			y6[q] = complex(vr*scale, vi*scale)
+			er, ei := a5r-a7r, a5i-a7i
+			fr, fi := a5r+a7r, a5i+a7i
+			d1r, d1i := (er+fi)*sqrtH, (ei-fr)*sqrtH
+			d3r, d3i := (fi-er)*sqrtH, -(ei+fr)*sqrtH
+			d0r, d0i := a4r+a6i, a4i-a6r
+			d2r, d2i := a4r-a6i, a4i+a6r
+			vr, vi = d0r+d1r, d0i+d1i
+			y1[q] = complex(vr*scale, vi*scale)
+			vr, vi = d0r-d1r, d0i-d1i
+			y5[q] = complex(vr*scale, vi*scale)
+			vr, vi = d2r+d3r, d2i+d3i
+			y3[q] = complex(vr*scale, vi*scale)
+			vr, vi = d2r-d3r, d2i-d3i
+			y7[q] = complex(vr*scale, vi*scale)
+		}
+	}
+}
+
+// r8s1 is r8 for s = 1 (first pass of a single sequence), where every
+// butterfly has its own twiddles and writes 8 adjacent outputs.
+func r8s1(y, x []complex128, tw []float64, g *geom) {
+	m := g.m
+	x0 := x[g.xo[0] : g.xo[0]+m]
+	x1 := x[g.xo[1] : g.xo[1]+m][:len(x0)]
+	x2 := x[g.xo[2] : g.xo[2]+m][:len(x0)]
+	x3 := x[g.xo[3] : g.xo[3]+m][:len(x0)]
+	x4 := x[g.xo[4] : g.xo[4]+m][:len(x0)]
+	x5 := x[g.xo[5] : g.xo[5]+m][:len(x0)]
+	x6 := x[g.xo[6] : g.xo[6]+m][:len(x0)]
+	x7 := x[g.xo[7] : g.xo[7]+m][:len(x0)]
+	p1 := g.yo[1] & 7
+	p2 := g.yo[2] & 7
+	p3 := g.yo[3] & 7
+	p4 := g.yo[4] & 7
+	p5 := g.yo[5] & 7
+	p6 := g.yo[6] & 7
+	p7 := g.yo[7] & 7
+	for p := range x0 {
+		w := tw[14*p : 14*p+14 : 14*p+14]
+		o := y[8*p : 8*p+8 : 8*p+8]
+		u, v := x0[p], x4[p]
+		a0r, a0i := real(u)+real(v), imag(u)+imag(v)
+		a4r, a4i := real(u)-real(v), imag(u)-imag(v)
+		u, v = x2[p], x6[p]
+		a2r, a2i := real(u)+real(v), imag(u)+imag(v)
+		a6r, a6i := real(u)-real(v), imag(u)-imag(v)
+		u, v = x1[p], x5[p]
+		a1r, a1i := real(u)+real(v), imag(u)+imag(v)
+		a5r, a5i := real(u)-real(v), imag(u)-imag(v)
+		u, v = x3[p], x7[p]
+		a3r, a3i := real(u)+real(v), imag(u)+imag(v)
+		a7r, a7i := real(u)-real(v), imag(u)-imag(v)
+		b0r, b0i := a0r+a2r, a0i+a2i
+		b2r, b2i := a0r-a2r, a0i-a2i
+		b1r, b1i := a1r+a3r, a1i+a3i
+		b3r, b3i := a1i-a3i, a3r-a1r
+		vr, vi := b0r+b1r, b0i+b1i
+		o[0] = complex(vr, vi)
+		vr, vi = b0r-b1r, b0i-b1i
+		o[p4] = complex(vr*w[6]-vi*w[7], vr*w[7]+vi*w[6])
+		vr, vi = b2r+b3r, b2i+b3i
+		o[p2] = complex(vr*w[2]-vi*w[3], vr*w[3]+vi*w[2])
+		vr, vi = b2r-b3r, b2i-b3i
+		o[p6] = complex(vr*w[10]-vi*w[11], vr*w[11]+vi*w[10])
+		er, ei := a5r-a7r, a5i-a7i
+		fr, fi := a5r+a7r, a5i+a7i
+		d1r, d1i := (er+fi)*sqrtH, (ei-fr)*sqrtH
+		d3r, d3i := (fi-er)*sqrtH, -(ei+fr)*sqrtH
+		d0r, d0i := a4r+a6i, a4i-a6r
+		d2r, d2i := a4r-a6i, a4i+a6r
+		vr, vi = d0r+d1r, d0i+d1i
+		o[p1] = complex(vr*w[0]-vi*w[1], vr*w[1]+vi*w[0])
+		vr, vi = d0r-d1r, d0i-d1i
+		o[p5] = complex(vr*w[8]-vi*w[9], vr*w[9]+vi*w[8])
+		vr, vi = d2r+d3r, d2i+d3i
+		o[p3] = complex(vr*w[4]-vi*w[5], vr*w[5]+vi*w[4])
+		vr, vi = d2r-d3r, d2i-d3i
+		o[p7] = complex(vr*w[12]-vi*w[13], vr*w[13]+vi*w[12])
 	}
 }
 
 // ---- direct butterfly of odd prime radix ----
 
-// bflyGen writes the forward r-point DFT of in (read through get) into
-// out[0..r), using the symmetric-pair form: for 0 < i ≤ h = (r-1)/2,
-// out[i] and out[r-i] share the sums x_k + x_(r-k) and x_k - x_(r-k).
-// tmp has length ≥ r+1.
+// bflyGen writes the forward r-point DFT of in into out[0..r), using the
+// symmetric-pair form: for 0 < i ≤ h = (r-1)/2, out[i] and out[r-i] share
+// the sums x_k + x_(r-k) and differences x_k - x_(r-k). tmp has length ≥ r+1.
 func bflyGen(out, in []complex128, r int, d *direct, tmp []complex128) {
 	h := (r - 1) / 2
 	sp := tmp[:h+1]
@@ -279,66 +519,65 @@ func bflyGen(out, in []complex128, r int, d *direct, tmp []complex128) {
 	}
 	out[0] = sum
 	for i := 1; i <= h; i++ {
-		re := x0
-		var im complex128
+		reR, reI := real(x0), imag(x0)
+		var imR, imI float64
 		idx := 0
 		for k := 1; k <= h; k++ {
 			idx += i
 			if idx >= r {
 				idx -= r
 			}
-			re += sp[k] * complex(d.cos[idx], 0)
-			im += sm[k] * complex(d.sin[idx], 0)
+			c, s := d.cos[idx], d.sin[idx]
+			reR += real(sp[k]) * c
+			reI += imag(sp[k]) * c
+			imR += real(sm[k]) * s
+			imI += imag(sm[k]) * s
 		}
 		// forward: out[i] = re - i·im, out[r-i] = re + i·im
-		t := mulNegI(im)
-		out[i] = re + t
-		out[r-i] = re - t
+		out[i] = complex(reR+imI, reI-imR)
+		out[r-i] = complex(reR-imI, reI+imR)
 	}
 }
 
-func rgen(y, x, tw []complex128, m, s, r int, d *direct, inv bool, tmp []complex128) {
-	ms := m * s
+// rgen is the pass of a direct butterfly of odd prime radix r; tmp has
+// length ≥ 3r+1.
+func rgen(y, x []complex128, tw []float64, g *geom, r int, d *direct, tmp []complex128) {
 	in := tmp[:r]
 	out := tmp[r : 2*r]
 	work := tmp[2*r:]
-	for p := range m {
-		w := tw[(r-1)*p : (r-1)*(p+1)]
-		for q := range s {
-			for k := range r {
-				in[k] = x[q+s*p+k*ms]
+	for p := range g.m {
+		w := tw[2*(r-1)*p : 2*(r-1)*(p+1)]
+		xb, yb := p*g.xstep, p*g.ystep
+		for q := range g.s {
+			for k := range in {
+				in[k] = x[xb+g.xo[k]+q]
 			}
 			bflyGen(out, in, r, d, work)
-			base := q + s*r*p
-			y[base] = out[0]
+			y[yb+g.yo[0]+q] = out[0]
 			for i := 1; i < r; i++ {
-				j := i
-				if inv {
-					j = r - i
-				}
-				y[base+s*j] = out[i] * w[i-1]
+				y[yb+g.yo[i]+q] = out[i] * complex(w[2*i-2], w[2*i-1])
 			}
 		}
 	}
 }
 
-func rgenlast(y, x []complex128, s, r int, d *direct, inv bool, scale float64, tmp []complex128) {
+// rgenlast is the last pass of a direct butterfly: no twiddles, outputs
+// times scale.
+func rgenlast(y, x []complex128, g *geom, r int, d *direct, scale float64, tmp []complex128) {
 	in := tmp[:r]
 	out := tmp[r : 2*r]
 	work := tmp[2*r:]
 	sc := complex(scale, 0)
-	for q := range s {
-		for k := range r {
-			in[k] = x[q+k*s]
-		}
-		bflyGen(out, in, r, d, work)
-		y[q] = out[0] * sc
-		for i := 1; i < r; i++ {
-			j := i
-			if inv {
-				j = r - i
+	for p := range g.m {
+		xb, yb := p*g.xstep, p*g.ystep
+		for q := range g.s {
+			for k := range in {
+				in[k] = x[xb+g.xo[k]+q]
 			}
-			y[q+s*j] = out[i] * sc
+			bflyGen(out, in, r, d, work)
+			for i := range out {
+				y[yb+g.yo[i]+q] = out[i] * sc
+			}
 		}
 	}
 }

@@ -11,7 +11,7 @@ import (
 // Clone.
 type Plan struct {
 	t     *tables
-	buf   []complex128 // ping-pong scratch, length n
+	a, b  []complex128 // scratch for the intermediate passes, length n each
 	wk    work
 	scale float64
 }
@@ -28,7 +28,8 @@ func NewPlan(n int) (*Plan, error) {
 func newPlanFrom(t *tables) *Plan {
 	return &Plan{
 		t:     t,
-		buf:   make([]complex128, t.n+4)[4:],
+		a:     make([]complex128, t.n),
+		b:     make([]complex128, t.n),
 		wk:    t.newWork(),
 		scale: 1 / math.Sqrt(float64(t.n)),
 	}
@@ -57,23 +58,5 @@ func (p *Plan) transform(dst, src []complex128, inv bool) {
 	if len(dst) != n || len(src) != n {
 		panic(fmt.Sprintf("fft: Plan of length %d given dst of length %d and src of length %d", n, len(dst), len(src)))
 	}
-	transform1(p.t, dst, src, p.buf, 1, inv, p.scale, &p.wk)
-}
-
-// transform1 runs t on s0 interleaved sequences from src into dst, with buf as
-// ping-pong scratch of the same length; dst may be src.
-func transform1(t *tables, dst, src, buf []complex128, s0 int, inv bool, scale float64, wk *work) {
-	alias := &dst[0] == &src[0]
-	if t.passes()%2 == 1 {
-		// An odd number of passes ends in the first output buffer: make
-		// that dst, reading from buf when src is dst.
-		if alias {
-			copy(buf, src)
-			src = buf
-		}
-		t.exec(src, dst, buf, s0, inv, scale, wk)
-		return
-	}
-	// Even: the first pass writes buf, the last one dst (src may be dst).
-	t.exec(src, buf, dst, s0, inv, scale, wk)
+	p.t.exec(dst, src, p.a, p.b, contiguous(1), inv, false, p.scale, &p.wk)
 }

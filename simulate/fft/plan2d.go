@@ -8,7 +8,7 @@ import (
 // colBlock is the number of adjacent columns transformed together in the
 // column pass: ny·colBlock values are gathered into a contiguous block whose
 // inner loops then run over colBlock·stride consecutive values.
-const colBlock = 8
+const colBlock = 16
 
 // maxLen2D bounds ny·nx.
 const maxLen2D = 1 << 30
@@ -20,14 +20,24 @@ const maxLen2D = 1 << 30
 type Plan2D struct {
 	ny, nx     int
 	rows, cols *tables
-	rowBuf     []complex128 // row ping-pong scratch, nx
+	rowA, rowB []complex128 // row scratch, nx each
 	blkA, blkB []complex128 // column blocks, ny·colBlock each
 	rowWk      work
 	colWk      work
-	shiftBuf   []complex128 // ny·nx, only when a side is odd (centred transforms)
+	centre     centring
+	shiftBuf   []complex128 // ny·nx, only for centring by explicit shifts
 	scaleY     float64
 	scaleX     float64
 }
+
+// centring is how a Plan2D computes its centred transforms.
+type centring int
+
+const (
+	centreRotate   centring = iota // both sides multiples of 4: slot rotation in the passes, free
+	centreModulate                 // both sides even: (-1)^(i+j) modulation folded into the copies
+	centreShift                    // a side is odd: explicit IShift and Shift through shiftBuf
+)
 
 // NewPlan2D returns a plan for ny-by-nx transforms, ny, nx ≥ 1.
 func NewPlan2D(ny, nx int) (*Plan2D, error) {
@@ -54,7 +64,8 @@ func newPlan2DFrom(ny, nx int, rows, cols *tables) *Plan2D {
 	b := min(colBlock, nx)
 	p := &Plan2D{
 		ny: ny, nx: nx, rows: rows, cols: cols,
-		rowBuf: make([]complex128, nx),
+		rowA:   make([]complex128, nx),
+		rowB:   make([]complex128, nx),
 		blkA:   make([]complex128, ny*b),
 		blkB:   make([]complex128, ny*b),
 		rowWk:  rows.newWork(),
@@ -62,7 +73,13 @@ func newPlan2DFrom(ny, nx int, rows, cols *tables) *Plan2D {
 		scaleY: 1 / math.Sqrt(float64(ny)),
 		scaleX: 1 / math.Sqrt(float64(nx)),
 	}
-	if ny%2 == 1 || nx%2 == 1 {
+	switch {
+	case rows.rotatable && cols.rotatable:
+		p.centre = centreRotate
+	case ny%2 == 0 && nx%2 == 0:
+		p.centre = centreModulate
+	default:
+		p.centre = centreShift
 		p.shiftBuf = make([]complex128, ny*nx)
 	}
 	return p
@@ -122,61 +139,73 @@ func (p *Plan2D) check(dst, src []complex128) {
 }
 
 func (p *Plan2D) centred(dst, src []complex128, inv bool) {
-	if p.shiftBuf == nil {
+	switch p.centre {
+	case centreRotate:
 		p.transform(dst, src, inv, true)
-		return
+	case centreModulate:
+		p.modulated(dst, src, inv)
+	default:
+		IShift(p.shiftBuf, src, p.ny, p.nx)
+		p.transform(p.shiftBuf, p.shiftBuf, inv, false)
+		Shift(dst, p.shiftBuf, p.ny, p.nx)
 	}
-	IShift(p.shiftBuf, src, p.ny, p.nx)
-	p.transform(p.shiftBuf, p.shiftBuf, inv, false)
-	Shift(dst, p.shiftBuf, p.ny, p.nx)
 }
 
 // transform runs the column pass from src into dst and then the row pass in
-// place on dst. With mod (even sizes only) it computes the centred transform
-// (-1)^((ny+nx)/2) (-1)^(k+l) F[(-1)^(i+j) x].
-func (p *Plan2D) transform(dst, src []complex128, inv, mod bool) {
+// place on dst; centred (only for centreRotate) selects the centred
+// transform. The column pass takes colBlock adjacent columns at a time: the
+// first pass reads them straight from src and the last one writes them
+// straight to dst, the passes between work on two small blocks that stay in
+// cache.
+func (p *Plan2D) transform(dst, src []complex128, inv, centred bool) {
 	ny, nx := p.ny, p.nx
-	outSign := 1.0
-	if mod && (ny/2+nx/2)%2 == 1 {
-		outSign = -1
-	}
 	for c0 := 0; c0 < nx; c0 += colBlock {
 		w := min(colBlock, nx-c0)
 		a := p.blkA[:ny*w]
 		b := p.blkB[:ny*w]
-		if mod {
-			gatherMod(a, src, ny, nx, c0, w)
-		} else {
-			gather(a, src, ny, nx, c0, w)
-		}
-		// a is free to be clobbered, so it serves as the second buffer.
-		r := p.cols.exec(a, b, a, w, inv, p.scaleY, &p.colWk)
-		if mod {
-			scatterMod(dst, r, ny, nx, c0, w, outSign)
-		} else {
-			scatter(dst, r, ny, nx, c0, w)
-		}
+		p.cols.exec(dst[c0:], src[c0:], a, b, layout{s0: w, ldIn: nx, ldOut: nx}, inv, centred, p.scaleY, &p.colWk)
 	}
 	for i := range ny {
 		row := dst[i*nx : (i+1)*nx]
-		transform1(p.rows, row, row, p.rowBuf, 1, inv, p.scaleX, &p.rowWk)
-		if mod {
-			for l := 1; l < nx; l += 2 {
-				row[l] = -row[l]
-			}
+		p.rows.exec(row, row, p.rowA, p.rowB, contiguous(1), inv, centred, p.scaleX, &p.rowWk)
+	}
+}
+
+// modulated computes the centred transform for even sides that are not both
+// multiples of 4, as (-1)^((ny+nx)/2) (-1)^(k+l) DFT[(-1)^(i+j) x]: the input
+// sign is applied while copying each column block in, the output sign to
+// each row after its transform, while it is in cache.
+func (p *Plan2D) modulated(dst, src []complex128, inv bool) {
+	ny, nx := p.ny, p.nx
+	for c0 := 0; c0 < nx; c0 += colBlock {
+		w := min(colBlock, nx-c0)
+		a := p.blkA[:ny*w]
+		b := p.blkB[:ny*w]
+		gatherMod(a, src, ny, nx, c0, w)
+		// b is the first intermediate; a, consumed by then, the second.
+		p.cols.exec(dst[c0:], a, b, a, layout{s0: w, ldIn: w, ldOut: nx}, inv, false, p.scaleY, &p.colWk)
+	}
+	sign := 1.0
+	if (ny/2+nx/2)%2 == 1 {
+		sign = -1
+	}
+	for k := range ny {
+		row := dst[k*nx : (k+1)*nx]
+		p.rows.exec(row, row, p.rowA, p.rowB, contiguous(1), inv, false, p.scaleX, &p.rowWk)
+		sg := sign
+		if k%2 == 1 {
+			sg = -sg
+		}
+		row = row[:nx&^1] // nx is even
+		for l := 0; l < len(row); l += 2 {
+			row[l] *= complex(sg, 0)
+			row[l+1] *= complex(-sg, 0)
 		}
 	}
 }
 
-// gather copies columns c0..c0+w of the ny×nx image src into blk, row by
-// row (w values per row).
-func gather(blk, src []complex128, ny, nx, c0, w int) {
-	for i := range ny {
-		copy(blk[i*w:(i+1)*w], src[i*nx+c0:i*nx+c0+w])
-	}
-}
-
-// gatherMod is gather with each value multiplied by (-1)^(i+j).
+// gatherMod copies columns c0..c0+w of the ny×nx image src into blk, row by
+// row (w values per row), multiplying each value by (-1)^(i+j).
 func gatherMod(blk, src []complex128, ny, nx, c0, w int) {
 	for i := range ny {
 		d := blk[i*w : (i+1)*w]
@@ -189,29 +218,6 @@ func gatherMod(blk, src []complex128, ny, nx, c0, w int) {
 		for c := range d {
 			d[c] = s[c] * complex(sg, 0)
 			sg = -sg
-		}
-	}
-}
-
-// scatter is the inverse of gather.
-func scatter(dst, blk []complex128, ny, nx, c0, w int) {
-	for i := range ny {
-		copy(dst[i*nx+c0:i*nx+c0+w], blk[i*w:(i+1)*w])
-	}
-}
-
-// scatterMod is scatter with each value of row k multiplied by sign·(-1)^k.
-func scatterMod(dst, blk []complex128, ny, nx, c0, w int, sign float64) {
-	for k := range ny {
-		s := blk[k*w : (k+1)*w]
-		d := dst[k*nx+c0 : k*nx+c0+w]
-		d = d[:len(s)]
-		sg := complex(sign, 0)
-		if k%2 == 1 {
-			sg = -sg
-		}
-		for c := range s {
-			d[c] = s[c] * sg
 		}
 	}
 }

@@ -20,11 +20,13 @@ const maxLen = 1 << 28
 // radix sub-sequences of length m = span/radix.
 type stage struct {
 	radix  int
-	m      int          // span / radix
-	stride int          // product of the radices of the earlier stages
-	tw     []complex128 // forward twiddles, tw[p*(radix-1)+i-1] = w^(i·p), w = exp(-2πi/span)
-	twInv  []complex128 // inverse twiddles in butterfly-output order: w^(-(radix-i)·p)
-	gen    *direct      // tables of a direct butterfly (radix not in 2, 3, 4, 5)
+	m      int // span / radix
+	stride int // product of the radices of the earlier stages
+	// tw holds the forward twiddles w^(i·p), w = exp(-2πi/span), for p < m and
+	// 0 < i < radix, as float64 pairs at 2·(p·(radix-1)+i-1); twInv holds the
+	// inverse ones in butterfly-output order, w^(-(radix-i)·p).
+	tw, twInv []float64
+	gen       *direct // tables of a direct butterfly (radix not in 2, 3, 4, 5)
 }
 
 // direct holds the cosines and sines of a direct butterfly of odd prime
@@ -39,6 +41,9 @@ type tables struct {
 	stages []stage
 	blue   *bluestein // non-nil when n has a prime factor > maxDirectPrime
 	genMax int        // largest direct radix (scratch for its butterfly)
+	// rotatable: the first and last radices are even, so that exec can
+	// centre the transform by rotating butterfly slots (see exec).
+	rotatable bool
 }
 
 var errLen = errors.New("fft: transform length must be at least 1")
@@ -63,16 +68,19 @@ func newTables(n int) (*tables, error) {
 	for _, r := range radices {
 		st := stage{radix: r, m: span / r, stride: stride}
 		if st.m > 1 {
-			st.tw = make([]complex128, st.m*(r-1))
-			st.twInv = make([]complex128, st.m*(r-1))
+			st.tw = make([]float64, 2*st.m*(r-1))
+			st.twInv = make([]float64, 2*st.m*(r-1))
 			for p := 0; p < st.m; p++ {
 				for i := 1; i < r; i++ {
-					st.tw[p*(r-1)+i-1] = unitRoot(-(i * p), span)
-					st.twInv[p*(r-1)+i-1] = unitRoot((r-i)*p, span)
+					k := 2 * (p*(r-1) + i - 1)
+					w := unitRoot(-(i * p), span)
+					st.tw[k], st.tw[k+1] = real(w), imag(w)
+					w = unitRoot((r-i)*p, span)
+					st.twInv[k], st.twInv[k+1] = real(w), imag(w)
 				}
 			}
 		}
-		if r != 2 && r != 3 && r != 4 && r != 5 {
+		if r != 2 && r != 3 && r != 4 && r != 5 && r != 8 {
 			d := &direct{cos: make([]float64, r), sin: make([]float64, r)}
 			for k := range r {
 				w := unitRoot(k, r)
@@ -85,32 +93,54 @@ func newTables(n int) (*tables, error) {
 		span /= r
 		stride *= r
 	}
+	if len(t.stages) > 0 {
+		t.rotatable = t.stages[0].radix%2 == 0 && t.stages[len(t.stages)-1].radix%2 == 0
+	}
 	return t, nil
 }
 
-// factor splits n into the radices of the stages, in the order they run: as
-// many 4s as possible, then a 2, 3s, 5s and other primes up to
-// maxDirectPrime. It reports false when n has a larger prime factor.
+// factor splits n into the radices of the stages, in the order they run. The
+// power of two becomes radix-8 stages followed by one or two radix-4 stages
+// (or a single radix 2 for n = 2·odd); the odd part becomes 3s, 5s and other
+// primes up to maxDirectPrime, run between the last power-of-two stage and
+// the others so that a multiple of 4 always starts and ends with an even
+// radix (needed by the centred shortcut of exec). factor reports false when n
+// has a prime factor above maxDirectPrime.
 func factor(n int) ([]int, bool) {
-	var r []int
-	for n%4 == 0 {
-		r = append(r, 4)
-		n /= 4
-	}
-	if n%2 == 0 {
-		r = append(r, 2)
+	e := 0
+	for n%2 == 0 {
+		e++
 		n /= 2
 	}
+	var pow2 []int
+	for ; e >= 3 && e != 4; e -= 3 {
+		pow2 = append(pow2, 8)
+	}
+	for ; e >= 2; e -= 2 {
+		pow2 = append(pow2, 4)
+	}
+	if e == 1 {
+		pow2 = append(pow2, 2)
+	}
+	var odd []int
 	for p := 3; n > 1; p += 2 {
 		if p > maxDirectPrime {
 			return nil, false
 		}
 		for n%p == 0 {
-			r = append(r, p)
+			odd = append(odd, p)
 			n /= p
 		}
 	}
-	return r, true
+	if len(odd) > 0 && len(pow2) == 1 && pow2[0] > 2 {
+		pow2 = []int{pow2[0] / 2, 2}
+	}
+	if len(pow2) == 0 {
+		return odd, true
+	}
+	r := append([]int(nil), pow2[:len(pow2)-1]...)
+	r = append(r, odd...)
+	return append(r, pow2[len(pow2)-1]), true
 }
 
 // unitRoot returns exp(2πi·k/n), reducing k modulo n and folding the angle
@@ -153,19 +183,10 @@ func unitRoot(k, n int) complex128 {
 	}
 }
 
-// scratchLen is the length of ping-pong scratch needed by exec with batch
-// interleave s0, and genLen that of the direct-butterfly scratch.
-func (t *tables) scratchLen(s0 int) int {
-	if t.blue != nil {
-		return 0
-	}
-	return t.n * s0
-}
-
 // work is the mutable scratch that belongs to one plan (not shared by clones).
 type work struct {
 	gen  []complex128 // direct butterfly temporaries, 3·genMax+1
-	blue []complex128 // Bluestein buffers, 2·M
+	blue []complex128 // Bluestein buffers, 3·M
 }
 
 func (t *tables) newWork() work {
@@ -174,90 +195,187 @@ func (t *tables) newWork() work {
 		w.gen = make([]complex128, 3*t.genMax+1)
 	}
 	if t.blue != nil {
-		w.blue = make([]complex128, 2*t.blue.m)
+		w.blue = make([]complex128, 3*t.blue.m)
+		w.gen = make([]complex128, 3*t.blue.inner.genMax+1)
 	}
 	return w
 }
 
-// exec transforms s0 interleaved sequences of length n (element j of sequence
-// c at index j·s0+c) read from in, multiplying the result by scale. Stage 0
-// reads in and writes x, stage 1 reads x and writes y, and so on; exec returns
-// whichever of x and y holds the result. in must not overlap x; in may be y.
-// All three have length n·s0 (y may be nil when the length needs no second
-// buffer, see passes).
-func (t *tables) exec(in, x, y []complex128, s0 int, inv bool, scale float64, wk *work) []complex128 {
+// layout says where exec finds its s0 interleaved sequences: element j of
+// sequence c is read from in[j·ldIn+c] and written to out[j·ldOut+c].
+// Contiguous data have ldIn = ldOut = s0.
+type layout struct {
+	s0, ldIn, ldOut int
+}
+
+func contiguous(s0 int) layout { return layout{s0, s0, s0} }
+
+// maxRadix bounds the radices, so that a geometry fits in fixed arrays.
+const maxRadix = maxDirectPrime
+
+// geom is the geometry of one pass: for each group p < m, butterfly input k
+// is the run x[p·xstep+xo[k] : ...+s] and butterfly output i goes to the run
+// y[p·ystep+yo[i] : ...+s]; the twiddles of group p are those of row p of
+// the stage table.
+type geom struct {
+	m, s         int
+	xstep, ystep int
+	xo, yo       [maxRadix]int
+}
+
+// exec transforms the sequences of in (laid out as l says) into out and
+// multiplies them by scale. a and b are scratch of length n·s0 for the
+// intermediate passes; they must not overlap in, out or each other, except
+// that b may be in when in and out differ (in is consumed by the first pass).
+// in and out may be the same slice (each pass reads all inputs of a butterfly before
+// writing its outputs, and only the last pass writes out).
+//
+// With centred set (only when t.rotatable), exec computes
+// fftshift(DFT(ifftshift(x))) at no extra cost: for even n, ifftshift moves
+// input row j to j+n/2, which in the first pass is the slot rotation
+// k → (k+r/2) mod r of the butterfly inputs, and fftshift of the output is
+// the same rotation of the output slots of the last pass.
+func (t *tables) exec(out, in, a, b []complex128, l layout, inv, centred bool, scale float64, wk *work) {
 	if t.blue != nil {
-		t.blue.exec(x, in, s0, inv, scale, wk.blue)
-		return x
+		t.blue.exec(out, in, l, inv, scale, wk)
+		return
 	}
-	if len(t.stages) == 0 { // n == 1
-		for i, v := range in[:s0] {
-			x[i] = v * complex(scale, 0)
+	if len(t.stages) == 0 { // n == 1: a single row
+		for c := range l.s0 {
+			out[c] = in[c] * complex(scale, 0)
 		}
-		return x
+		return
 	}
-	src, dst := in, x
+	var g geom
+	src := in
 	last := len(t.stages) - 1
 	for k := range t.stages {
 		st := &t.stages[k]
-		s := st.stride * s0
-		tw := st.tw
-		if inv {
-			tw = st.twInv
+		dst := a
+		switch {
+		case k == last:
+			dst = out
+		case k%2 == 1:
+			dst = b
 		}
+		st.geometry(&g, k == 0, k == last, l, inv, centred)
 		if k == last {
-			runLast(st, dst, src, s, inv, scale, wk)
+			runLast(st, dst, src, &g, scale, wk)
 		} else {
-			run(st, dst, src, tw, s, inv, wk)
+			tw := st.tw
+			if inv {
+				tw = st.twInv
+			}
+			run(st, dst, src, tw, &g, wk)
 		}
-		if k == 0 {
-			src, dst = x, y
-		} else {
-			src, dst = dst, src
-		}
+		src = dst
 	}
-	return src
 }
 
-// passes is the number of ping-pong passes exec makes (the stages, or one for
-// the direct copy of length 1 or for Bluestein).
-func (t *tables) passes() int {
-	if t.blue != nil || len(t.stages) == 0 {
-		return 1
+// geometry fills g for this stage (see geom and exec).
+func (st *stage) geometry(g *geom, first, last bool, l layout, inv, centred bool) {
+	r, m := st.radix, st.m
+	s := st.stride * l.s0
+	irot, orot := 0, 0
+	if centred {
+		if first {
+			irot = r / 2
+		}
+		if last {
+			orot = r / 2
+		}
 	}
-	return len(t.stages)
+	for i := range r {
+		j := i
+		if inv && i != 0 {
+			j = r - i
+		}
+		j += orot
+		if j >= r {
+			j -= r
+		}
+		g.yo[i] = j // output slot, scaled below
+	}
+	g.m, g.s = m, s
+	g.xstep = s
+	if first {
+		g.xstep = l.ldIn
+	}
+	for k := range r {
+		kk := k + irot
+		if kk >= r {
+			kk -= r
+		}
+		g.xo[k] = kk * m * g.xstep
+	}
+	if !last {
+		g.ystep = r * s
+		for i := range r {
+			g.yo[i] *= s
+		}
+		return
+	}
+	// Last pass: m == 1.
+	if l.ldOut == l.s0 {
+		g.ystep = 0
+		for i := range r {
+			g.yo[i] *= s
+		}
+		return
+	}
+	// Pitched output: one group per sub-sequence row t < stride, each of s0
+	// values; output row of slot j is t + stride·j.
+	g.m, g.s = st.stride, l.s0
+	g.ystep = l.ldOut
+	for i := range r {
+		g.yo[i] *= st.stride * l.ldOut
+	}
+	if !first {
+		g.xstep = l.s0
+		for k := range r {
+			g.xo[k] = k * s
+		}
+	}
 }
 
-func run(st *stage, y, x, tw []complex128, s int, inv bool, wk *work) {
+func run(st *stage, y, x []complex128, tw []float64, g *geom, wk *work) {
 	switch st.radix {
-	case 4:
-		if s == 1 {
-			r4s1(y, x, tw, st.m, inv)
+	case 8:
+		if g.s == 1 {
+			r8s1(y, x, tw, g)
 		} else {
-			r4(y, x, tw, st.m, s, inv)
+			r8(y, x, tw, g)
+		}
+	case 4:
+		if g.s == 1 {
+			r4s1(y, x, tw, g)
+		} else {
+			r4(y, x, tw, g)
 		}
 	case 2:
-		r2(y, x, tw, st.m, s)
+		r2(y, x, tw, g)
 	case 3:
-		r3(y, x, tw, st.m, s, inv)
+		r3(y, x, tw, g)
 	case 5:
-		r5(y, x, tw, st.m, s, inv)
+		r5(y, x, tw, g)
 	default:
-		rgen(y, x, tw, st.m, s, st.radix, st.gen, inv, wk.gen)
+		rgen(y, x, tw, g, st.radix, st.gen, wk.gen)
 	}
 }
 
-func runLast(st *stage, y, x []complex128, s int, inv bool, scale float64, wk *work) {
+func runLast(st *stage, y, x []complex128, g *geom, scale float64, wk *work) {
 	switch st.radix {
+	case 8:
+		r8last(y, x, g, scale)
 	case 4:
-		r4last(y, x, s, inv, scale)
+		r4last(y, x, g, scale)
 	case 2:
-		r2last(y, x, s, scale)
+		r2last(y, x, g, scale)
 	case 3:
-		r3last(y, x, s, inv, scale)
+		r3last(y, x, g, scale)
 	case 5:
-		r5last(y, x, s, inv, scale)
+		r5last(y, x, g, scale)
 	default:
-		rgenlast(y, x, s, st.radix, st.gen, inv, scale, wk.gen)
+		rgenlast(y, x, g, st.radix, st.gen, scale, wk.gen)
 	}
 }
