@@ -65,11 +65,14 @@ func (p *WaveletL1) Value(x []complex128) float64 {
 	nx := p.w.Nx()
 	ar, ac := p.w.ApproxSize()
 	var s float64
-	for i, c := range p.coef {
-		if i/nx < ar && i%nx < ac {
-			continue
+	for r := range p.w.Ny() {
+		row := p.coef[r*nx : (r+1)*nx]
+		if r < ar {
+			row = row[ac:]
 		}
-		s += math.Sqrt(real(c)*real(c) + imag(c)*imag(c))
+		for _, c := range row {
+			s += math.Sqrt(real(c)*real(c) + imag(c)*imag(c))
+		}
 	}
 	return s
 }
