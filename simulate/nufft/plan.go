@@ -16,11 +16,14 @@ type Options struct {
 	// size with no prime factor above 5 that is at least α times the image.
 	Oversampling float64
 	// Width is the kernel width W in oversampled grid cells, in [MinWidth,
-	// MaxWidth]; 0 means 4. The error falls roughly tenfold per extra cell.
+	// MaxWidth]; 0 means 4. With α = 2 the relative error falls about tenfold
+	// per extra cell (measured against the NDFT: 6e-4 at W = 4, 8e-8 at
+	// W = 8); with α = 1.25 about fourfold (7e-3 at W = 4, 2e-5 at W = 8).
 	Width int
-	// Workers is the number of goroutines a call uses; 0 means 1, because the
-	// sweep runner already runs one point per core. The result is bit-for-bit
-	// the same for every worker count.
+	// Workers is the number of goroutines that spread and interpolate; 0
+	// means 1, because the sweep runner already runs one point per core. The
+	// FFT of the grid runs on one goroutine. The result is bit-for-bit the
+	// same for every worker count.
 	Workers int
 }
 
@@ -52,8 +55,9 @@ func (o Options) validate() error {
 
 // sample is one k-space point as the hot loops see it: the first grid cell
 // (ox, oy) its kernel touches and its position idx in the caller's data
-// vector. wrap marks the rare points whose kernel crosses the edge of the
-// periodic grid. Its 2W kernel weights are kept apart, in Plan.weights.
+// vector. wrap marks the points within W/2 cells of the band edge, whose
+// kernel crosses the edge of the periodic grid. Its 2W kernel weights are
+// kept apart, in Plan.weights.
 type sample struct {
 	ox, oy int32
 	idx    int32
@@ -64,7 +68,10 @@ type sample struct {
 // simulate.Operator whose Forward maps an ny×nx image to the samples and
 // whose Adjoint is its exact adjoint. Build it once per trajectory and reuse
 // it; a Plan holds scratch space and is not safe for concurrent use (use
-// Clone for another goroutine).
+// Clone for another goroutine). It keeps the oversampled grid (16 bytes per
+// cell) and, per sample, 16 bytes of position plus its 2W kernel weights
+// (8 bytes each), computed once when the plan is built: at 256², α = 2,
+// W = 4 and 100k samples that is 4 MB of grid and 8 MB of tables.
 //
 // Forward is the type-2 NUFFT by gridding: deapodise and zero-pad the image
 // onto a grid oversampled by α, take its DFT, and interpolate each sample from
@@ -102,6 +109,15 @@ type Plan struct {
 
 	interpJob, spreadJob func(int)
 }
+
+// Plan has the method set of simulate.Operator (spelled out here, because
+// package simulate may import this one).
+var _ interface {
+	Forward(dst, src []complex128)
+	Adjoint(dst, src []complex128)
+	ImageLen() int
+	DataLen() int
+} = (*Plan)(nil)
 
 // New builds a NUFFT plan for an ny×nx image and the k-space points (kx[j],
 // ky[j]) in cycles per FOV. Every point must lie in the band |kx| ≤ nx/2,
