@@ -214,8 +214,9 @@ func TestPoissonDisc(t *testing.T) {
 		if err != nil {
 			t.Fatalf("%+v: %v", c, err)
 		}
-		if math.Abs(float64(s.Shots-c.samples)) > 0.01*float64(c.samples) {
-			t.Errorf("%+v: %d samples, want %d within 1%%", c, s.Shots, c.samples)
+		// Issue 3 asks for counts within 1%; the surplus thinning makes them exact.
+		if s.Shots != c.samples {
+			t.Errorf("%+v: %d samples, want exactly %d", c, s.Shots, c.samples)
 		}
 		if s.Shots != countTrue(s.Mask) {
 			t.Errorf("Shots %d, mask has %d", s.Shots, countTrue(s.Mask))

@@ -24,7 +24,7 @@ const minDiscScale = 0.5
 const poissonTries = 30
 
 // Cartesian3DPoissonDisc returns a variable-density Poisson-disc sampling of
-// the phase-encode plane with samples points within 1% (in practice exactly):
+// the phase-encode plane with exactly samples points:
 // dart throwing with an active list in O(n) (Bridson R, "Fast Poisson disk
 // sampling in arbitrary dimensions", SIGGRAPH sketches 2007), on the integer
 // (ky, kz) grid, with an exclusion radius PoissonDiscRadius(λ, growth, ρ) that

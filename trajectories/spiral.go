@@ -94,9 +94,10 @@ func (sp SpiralSpec) gapFactor(k, kmax float64) float64 {
 // k(θ) = r(θ)·e^{iθ} with dr/dθ = n·u(r)/(2π·FOV), which leaves a gap of
 // u(r)/FOV between neighbouring arms of the n interleaves (Glover GH, MRM
 // 1999;42:412-415 for the constant-density case, u ≡ 1; variable density as
-// in Kim DH, Adalsteinsson E, Spielman DM, MRM 2003;50:214-219, memory). The
+// in Kim DH, Adalsteinsson E, Spielman DM, MRM 2003;50:214-219; both from
+// memory). The
 // time course along that shape is the fastest one the limits allow, found as
-// in Lustig M, Kim SJ, Pauly JM, IEEE TMI 2008;27:866-873: on a fine arc-length
+// in Lustig M, Kim SJ, Pauly JM, IEEE TMI 2008;27:866-873 (memory): on a fine arc-length
 // grid the speed is capped by γ̄·GMax and by √(γ̄·SMax/κ) (κ the curvature),
 // then raised forward and lowered backward with the tangential acceleration
 // the slew budget leaves. The result is resampled every Dt and checked: the
