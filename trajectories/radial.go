@@ -7,7 +7,7 @@ import (
 )
 
 // Phi is the golden ratio (1 + √5)/2.
-var Phi = (1 + math.Sqrt(5)) / 2
+const Phi = 1.61803398874989484820458683436563811772
 
 // Scheme names of the radial orders.
 const (
