@@ -84,7 +84,9 @@ type Outcome struct {
 	// Images holds the magnitude reconstruction of the first scored draw,
 	// [candidate][recon].
 	Images  [][][]float64
+	Started time.Time
 	Elapsed time.Duration
+	Workers int // worker goroutines used; results do not depend on it
 }
 
 // Options tune a run without changing its results.
@@ -159,7 +161,7 @@ func Run(ctx context.Context, p *Plan, opt Options) (*Outcome, error) {
 	}
 	ny, nx := p.Object.PhaseLines, p.Object.ReadoutPoints
 	ph := simulate.ModifiedSheppLogan()
-	o := &Outcome{Plan: p, Candidates: cands}
+	o := &Outcome{Plan: p, Candidates: cands, Started: start}
 	o.Truth = ph.Rasterize(nx, ny)
 	o.Support = ph.Support(nx, ny)
 	o.Sigma, err = simulate.NoiseSigma(o.Truth, o.Support, p.Scanner.ReferenceSNR)
@@ -206,6 +208,7 @@ func Run(ctx context.Context, p *Plan, opt Options) (*Outcome, error) {
 	if workers <= 0 {
 		workers = runtime.GOMAXPROCS(0)
 	}
+	o.Workers = workers
 	env := &runEnv{plan: p, out: o, spectrum: spectrum, ny: ny, nx: nx}
 	for _, stage := range [][]job{tune, score} {
 		if err := pool(ctx, workers, stage, env, tick); err != nil {

@@ -1,13 +1,16 @@
 package main
 
 import (
+	"crypto/sha256"
 	"fmt"
 	"math"
 	"math/cmplx"
 	"os"
 	"path/filepath"
+	"runtime"
 	"strconv"
 	"strings"
+	"time"
 
 	"accelplan/out"
 	"accelplan/plans"
@@ -85,6 +88,9 @@ func writeFolder(dir string, o *plans.Outcome, a *plans.Analysis, version, cauti
 		rows = append(rows, row)
 	}
 	if err := out.WriteCSV(filepath.Join(dir, "summary.csv"), header, rows); err != nil {
+		return err
+	}
+	if err := writeJSON(dir, o, a, version); err != nil {
 		return err
 	}
 	if err := writeCurve(dir, o, a, caution); err != nil {
@@ -186,4 +192,96 @@ func writeCurve(dir string, o *plans.Outcome, a *plans.Analysis, caution string)
 		chart.Curves = append(chart.Curves, c)
 	}
 	return out.PlotCurve(filepath.Join(dir, "curve.png"), filepath.Join(dir, "curve.svg"), chart)
+}
+
+// manifest records what made a results folder, for whoever reruns it.
+type manifest struct {
+	Tool       string  `json:"tool"`
+	Version    string  `json:"version"`
+	GoVersion  string  `json:"go_version"`
+	Plan       string  `json:"plan"`
+	PlanSHA256 string  `json:"plan_sha256"`
+	Seed       uint64  `json:"seed"`
+	NoiseSigma float64 `json:"noise_sigma_per_sample"`
+	Started    string  `json:"started"`
+	Seconds    float64 `json:"seconds"`
+	Workers    int     `json:"workers"`
+	Candidates []struct {
+		Scheme   string  `json:"scheme"`
+		AskedR   float64 `json:"asked_R"`
+		R        float64 `json:"achieved_R"`
+		Lines    int     `json:"lines"`
+		MaskSeed uint64  `json:"mask_seed"`
+		Lambda   []struct {
+			Method string  `json:"method"`
+			Lambda float64 `json:"lambda_rel"`
+			Rule   string  `json:"rule"`
+			Seed   uint64  `json:"calibration_noise_seed"`
+			Score  float64 `json:"calibration_score"`
+		} `json:"lambda,omitempty"`
+	} `json:"candidates"`
+}
+
+// resultRow is one line of results.json.
+type resultRow struct {
+	Scheme     string  `json:"scheme"`
+	Method     string  `json:"method"`
+	AskedR     float64 `json:"asked_R"`
+	R          float64 `json:"achieved_R"`
+	Lines      int     `json:"lines"`
+	ScanTime   float64 `json:"scan_time_s"`
+	Repeat     int     `json:"repeat"`
+	NoiseSeed  uint64  `json:"noise_seed"`
+	Lambda     float64 `json:"lambda_rel"`
+	LambdaRule string  `json:"lambda_rule"`
+	NRMSE      float64 `json:"nrmse"`
+	PSNR       float64 `json:"psnr_db"`
+	SSIM       float64 `json:"ssim"`
+}
+
+func writeJSON(dir string, o *plans.Outcome, a *plans.Analysis, version string) error {
+	p := o.Plan
+	m := manifest{Tool: "accelplan", Version: version, GoVersion: runtime.Version(), Plan: p.Source,
+		PlanSHA256: fmt.Sprintf("%x", sha256.Sum256(p.Text)), Seed: p.Seed, NoiseSigma: o.Sigma,
+		Started: o.Started.UTC().Format(time.RFC3339), Seconds: o.Elapsed.Seconds(), Workers: o.Workers}
+	m.Candidates = make([]struct {
+		Scheme   string  `json:"scheme"`
+		AskedR   float64 `json:"asked_R"`
+		R        float64 `json:"achieved_R"`
+		Lines    int     `json:"lines"`
+		MaskSeed uint64  `json:"mask_seed"`
+		Lambda   []struct {
+			Method string  `json:"method"`
+			Lambda float64 `json:"lambda_rel"`
+			Rule   string  `json:"rule"`
+			Seed   uint64  `json:"calibration_noise_seed"`
+			Score  float64 `json:"calibration_score"`
+		} `json:"lambda,omitempty"`
+	}, len(o.Candidates))
+	for ci, c := range o.Candidates {
+		mc := &m.Candidates[ci]
+		mc.Scheme, mc.AskedR, mc.R, mc.Lines, mc.MaskSeed = p.Schemes[c.Scheme].Label, c.AskedR, c.Sampling.R, c.Sampling.Shots, c.MaskSeed
+		for ri, t := range o.Tunings[ci] {
+			if t.Rule == "" {
+				continue
+			}
+			mc.Lambda = append(mc.Lambda, struct {
+				Method string  `json:"method"`
+				Lambda float64 `json:"lambda_rel"`
+				Rule   string  `json:"rule"`
+				Seed   uint64  `json:"calibration_noise_seed"`
+				Score  float64 `json:"calibration_score"`
+			}{p.Recons[ri].Label, t.Lambda, t.Rule, t.NoiseSeed, t.Score})
+		}
+	}
+	if err := out.WriteJSON(filepath.Join(dir, "manifest.json"), m); err != nil {
+		return err
+	}
+	rows := make([]resultRow, 0, len(o.Results))
+	for _, r := range o.Results {
+		c := o.Candidates[r.Candidate]
+		rows = append(rows, resultRow{p.Schemes[c.Scheme].Label, p.Recons[r.Recon].Label, c.AskedR, c.Sampling.R,
+			c.Sampling.Shots, c.ScanTime, r.Repeat, r.NoiseSeed, r.Lambda, r.LambdaRule, r.NRMSE, r.PSNR, r.SSIM})
+	}
+	return out.WriteJSON(filepath.Join(dir, "results.json"), rows)
 }
