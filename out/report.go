@@ -152,7 +152,7 @@ func EncodeReportPNG(m image.Image) ([]byte, error) {
 		return nil, errors.New("out: no image to encode")
 	}
 	var buf bytes.Buffer
-	enc := png.Encoder{CompressionLevel: png.BestCompression}
+	enc := png.Encoder{CompressionLevel: png.DefaultCompression}
 	if err := enc.Encode(&buf, m); err != nil {
 		return nil, fmt.Errorf("out: encoding PNG: %w", err)
 	}
@@ -236,7 +236,8 @@ type reportView struct {
 	GrayLo, GrayHi                                 string
 	Candidates                                     []candView
 	Passing                                        int
-	StartID                                        string // candidate the stepper opens on
+	Pareto                                         []candView // candidates on the Pareto front, by scan time
+	StartID                                        string     // candidate the stepper opens on
 	StartGroup                                     string
 	Groups                                         []string
 	Script                                         template.JS
@@ -275,7 +276,8 @@ type candView struct {
 	Label, Scheme, Method, Group string
 	R, Lines, Time, Seconds      string
 	Lambda, Note                 string
-	Meets, Pick                  bool
+	Meets, Pick, Pareto          bool
+	AcceptMean, AcceptBound      string // the acceptance metric, "" if absent
 	Values                       []valueView
 	Figures                      []figView
 }
@@ -496,6 +498,23 @@ func buildReportView(r Report) (*reportView, error) {
 	if v.StartID == "" {
 		v.StartID = longest
 	}
+	times := make([]float64, len(order))
+	means := make([]float64, len(order))
+	for k, i := range order {
+		times[k], means[k] = r.Candidates[i].ScanTime, math.NaN()
+		for _, val := range r.Candidates[i].Values {
+			if strings.EqualFold(strings.TrimSpace(val.Metric), metric) {
+				means[k] = val.Mean
+				break
+			}
+		}
+	}
+	for k, on := range ParetoFront(times, means, r.HigherIsBetter) {
+		if on {
+			v.Candidates[k].Pareto = true
+			v.Pareto = append(v.Pareto, v.Candidates[k])
+		}
+	}
 	if v.Pick.Found {
 		for _, cv := range v.Candidates {
 			if cv.Pick {
@@ -505,6 +524,43 @@ func buildReportView(r Report) (*reportView, error) {
 		}
 	}
 	return v, nil
+}
+
+// ParetoFront marks the candidates that no other candidate beats on both
+// scan time and quality: candidate i is on the front unless some j has
+// times[j] ≤ times[i] and a quality at least as good, with at least one of
+// the two strictly better (Pareto dominance; e.g. Deb K, Multi-Objective
+// Optimization Using Evolutionary Algorithms, Wiley 2001, ch. 2). quality
+// is better when higher if higherIsBetter, else when lower. Candidates with
+// a NaN time or quality take no part and are never on the front. The
+// slices must have the same length; the result has that length too.
+func ParetoFront(times, quality []float64, higherIsBetter bool) []bool {
+	n := min(len(times), len(quality))
+	on := make([]bool, len(times))
+	better := func(a, b float64) bool { // a strictly better than b
+		if higherIsBetter {
+			return a > b
+		}
+		return a < b
+	}
+	for i := range n {
+		if math.IsNaN(times[i]) || math.IsNaN(quality[i]) {
+			continue
+		}
+		on[i] = true
+		for j := range n {
+			if j == i || math.IsNaN(times[j]) || math.IsNaN(quality[j]) {
+				continue
+			}
+			noWorse := times[j] <= times[i] && !better(quality[i], quality[j])
+			strictly := times[j] < times[i] || better(quality[j], quality[i])
+			if noWorse && strictly {
+				on[i] = false
+				break
+			}
+		}
+	}
+	return on
 }
 
 func buildPick(what string, p ReportPick, ref float64) (pickView, error) {
@@ -591,6 +647,9 @@ func buildCandidate(k, i int, c ReportCandidate, r Report, metric string, shared
 		}
 		if val.N > 0 {
 			vv.N = strconv.Itoa(val.N)
+		}
+		if vv.Accept && cv.AcceptMean == "" {
+			cv.AcceptMean, cv.AcceptBound = vv.Mean, vv.Bound
 		}
 		cv.Values = append(cv.Values, vv)
 	}

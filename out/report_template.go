@@ -41,6 +41,8 @@ h2 .num { color: var(--accent); font-size: 0.95rem; font-variant-numeric: tabula
 h3 { font-size: 1.05rem; margin: 1.4rem 0 0.5rem; font-weight: 650; }
 p.lede { margin: 0 0 1rem; color: var(--muted); max-width: 52rem; }
 .tnum { font-variant-numeric: tabular-nums; }
+a { color: var(--accent); }
+a:hover { text-decoration-thickness: 2px; }
 
 .verdict { display: grid; grid-template-columns: minmax(13rem, 17rem) 1fr; gap: 0.4rem 2rem; background: var(--card); border: 1px solid var(--rule); border-top: 6px solid var(--pass); padding: 1.2rem 1.5rem 1.1rem; }
 .verdict.none { display: block; border-top: 6px dashed var(--fail); }
@@ -82,7 +84,7 @@ figure.chart figcaption { margin-top: 0.4rem; color: var(--muted); font-size: 0.
 figure.chart figcaption strong { color: var(--ink); margin-right: 0.4rem; }
 
 .scales { display: flex; flex-wrap: wrap; gap: 1rem 2.5rem; margin: 0 0 1rem; }
-figure.scale { flex: 0 1 22rem; }
+figure.scale { flex: 0 1 26rem; }
 figure.scale img { display: block; width: 100%; height: 14px; border: 1px solid var(--rule); }
 figure.scale figcaption { display: flex; justify-content: space-between; gap: 0.6rem; font-size: 0.82rem; color: var(--muted); font-variant-numeric: tabular-nums; }
 
@@ -117,6 +119,7 @@ article.cand.pick { box-shadow: 0 0 0 2px var(--accent); }
 .badge.pass { color: var(--pass); background: var(--pass-soft); border: 1px solid var(--pass); }
 .badge.fail { color: var(--fail); background: var(--fail-soft); border: 1px dashed var(--fail); }
 .badge.pick { color: #fff; background: var(--accent); border: 1px solid var(--accent); }
+.badge.front { color: var(--accent); background: var(--card); border: 1px solid var(--accent); }
 .cand-time { margin-left: auto; font-size: 1.15rem; font-weight: 700; font-variant-numeric: tabular-nums; }
 .cand-time small { font-weight: 400; color: var(--muted); font-size: 0.85rem; }
 .cand-sub { margin: 0.15rem 0 0.7rem; color: var(--muted); font-size: 0.92rem; }
@@ -140,8 +143,18 @@ footer.foot { margin-top: 3rem; padding: 1rem 0 2rem; border-top: 1px solid var(
   .figs { grid-template-columns: repeat(2, minmax(0, 1fr)); }
 }
 @media print {
-  @page { margin: 14mm; }
-  body { background: #fff; font-size: 11pt; }
+  @page { margin: 12mm; }
+  html { font-size: 10pt; }
+  body { background: #fff; }
+  .wrap { max-width: none; padding: 0; }
+  .tablewrap { overflow: visible; border: none; }
+  table { font-size: 8.5pt; }
+  th, td { padding: 0.15rem 0.4rem; }
+  th { white-space: normal; }
+  h2, h3 { break-after: avoid; }
+  section.part { margin: 1.2rem 0; }
+  .verdict .bigtime { font-size: 2.4rem; }
+  article.cand { padding: 0.5rem 0.8rem; margin-bottom: 0.6rem; }
   .masthead, .tablewrap, figure.chart, article.cand, .verdict { background: #fff; }
   nav.toc, .stepper, noscript { display: none !important; }
   #cand-list.stepping article.cand, #cand-list article.cand { display: block !important; }
@@ -205,7 +218,15 @@ footer.foot { margin-top: 3rem; padding: 1rem 0 2rem; border-top: 1px solid var(
 <p class="lede">Each candidate's quality over the scored noise draws, plotted against its scan time. The acceptance bar is {{.BarLong}}.</p>
 {{range .Charts}}<figure class="chart"><img {{.Src}} alt="{{.Alt}}"/><figcaption><strong>{{.Name}}</strong>{{.Caption}}</figcaption></figure>
 {{else}}<p class="hint">No chart was made for this run.</p>
-{{end}}</section>
+{{end}}{{if .Pareto}}<h3>Pareto front across all schemes and methods</h3>
+<p class="lede">Candidates that no other candidate beats on both scan time and mean {{.Metric}}, shortest first. Marked ◆ in the candidate list.</p>
+<div class="tablewrap"><table class="pareto">
+<thead><tr><th scope="col">bar</th><th scope="col">scan time</th><th scope="col">candidate</th><th scope="col">sampling</th><th scope="col">reconstruction</th><th scope="col">{{.Metric}} mean</th><th scope="col">95% bound</th></tr></thead>
+<tbody>
+{{range .Pareto}}<tr class="{{if .Meets}}pass{{else}}fail{{end}}{{if .Pick}} pick{{end}}"><td class="status">{{if .Meets}}✓ meets{{else}}✗ misses{{end}}{{if .Pick}} ★ pick{{end}}</td><td class="n">{{.Time}}</td><td><a href="#{{.ID}}">#{{.Number}} {{.Label}}</a></td><td>{{.Scheme}}</td><td>{{.Method}}</td><td class="n">{{.AcceptMean}}</td><td class="n">{{.AcceptBound}}</td></tr>
+{{end}}</tbody>
+</table></div>{{end}}
+</section>
 
 <section class="part" id="table">
 <h2><span class="num">3</span> Summary table</h2>
@@ -241,7 +262,7 @@ footer.foot { margin-top: 3rem; padding: 1rem 0 2rem; border-top: 1px solid var(
 <noscript><p class="hint">Script is off: every candidate is listed below, in order of scan time.</p></noscript>
 <div id="cand-list" data-start="{{.StartID}}" data-start-group="{{.StartGroup}}">
 {{range .Candidates}}<article class="cand {{if .Meets}}pass{{else}}fail{{end}}{{if .Pick}} pick{{end}}" id="{{.ID}}" data-group="{{.Group}}" data-time="{{.Time}}" data-summary="{{.Label}} · {{.Group}} · {{.Time}} · {{if .Meets}}✓ meets the bar{{else}}✗ misses the bar{{end}}{{if .Pick}} · ★ recommended{{end}}">
-<div class="cand-head"><span class="cand-no" title="position in order of scan time">#{{.Number}}</span><h3>{{.Label}}</h3>{{if .Meets}}<span class="badge pass">✓ meets the bar</span>{{else}}<span class="badge fail">✗ misses the bar</span>{{end}}{{if .Pick}}<span class="badge pick">★ recommended</span>{{end}}<span class="cand-time">{{.Time}} <small>{{.Seconds}}</small></span></div>
+<div class="cand-head"><span class="cand-no" title="position in order of scan time">#{{.Number}}</span><h3>{{.Label}}</h3>{{if .Meets}}<span class="badge pass">✓ meets the bar</span>{{else}}<span class="badge fail">✗ misses the bar</span>{{end}}{{if .Pick}}<span class="badge pick">★ recommended</span>{{end}}{{if .Pareto}}<span class="badge front" title="no other candidate is both shorter and better">◆ Pareto front</span>{{end}}<span class="cand-time">{{.Time}} <small>{{.Seconds}}</small></span></div>
 <p class="cand-sub">{{with .Scheme}}{{.}}{{end}}{{if and .Scheme .Method}} · {{end}}{{with .Method}}{{.}}{{end}}{{with .R}} · R = {{.}}{{end}}{{with .Lines}} · {{.}} lines{{end}}</p>
 <div class="figs">{{range .Figures}}<figure class="fig fig-{{.Kind}}">{{if .Src}}<img {{.Src}} alt="{{.Alt}}"/>{{else}}<div class="noimg">not available</div>{{end}}<figcaption>{{.Caption}}{{with .Note}}<br/><span class="note">{{.}}</span>{{end}}</figcaption></figure>{{end}}</div>
 <div class="cand-foot">

@@ -6,6 +6,7 @@ import (
 	"encoding/json"
 	"encoding/xml"
 	"fmt"
+	"html"
 	"image"
 	"image/png"
 	"io"
@@ -16,6 +17,7 @@ import (
 	"os/exec"
 	"path/filepath"
 	"regexp"
+	"sort"
 	"strings"
 	"testing"
 )
@@ -79,6 +81,14 @@ func sampleCandidate(t testing.TB, c sampleCand, truth []float64, seed uint64) (
 	mask := make([]bool, n*n)
 	rows := make([]bool, n)
 	calib := 6
+	// Variable density: exactly round(n/r) rows, the calibration block plus
+	// rows drawn without replacement with weight 1 − 0.7·|distance from
+	// the centre| (keys u^(1/w), largest first).
+	type keyed struct {
+		row int
+		key float64
+	}
+	var pool []keyed
 	for i := range n {
 		switch {
 		case i >= n/2-calib/2 && i < n/2+calib/2:
@@ -87,7 +97,13 @@ func sampleCandidate(t testing.TB, c sampleCand, truth []float64, seed uint64) (
 			rows[i] = math.Mod(float64(i), c.r) < 1
 		default:
 			d := math.Abs(float64(i)-float64(n)/2) / (float64(n) / 2)
-			rows[i] = rng.Float64() < math.Min(1, 1.6/c.r*(1-0.7*d)+0.05)
+			pool = append(pool, keyed{i, math.Pow(rng.Float64(), 1/(1-0.7*d))})
+		}
+	}
+	if !c.uniform {
+		sort.Slice(pool, func(a, b int) bool { return pool[a].key > pool[b].key })
+		for _, p := range pool[:max(0, int(math.Round(float64(n)/c.r))-calib)] {
+			rows[p.row] = true
 		}
 	}
 	lines := 0
@@ -160,9 +176,10 @@ func sampleCandidate(t testing.TB, c sampleCand, truth []float64, seed uint64) (
 		"mask":  enc(MaskImage(mask, n, n)),
 		"psf":   enc(GrayImage(psf, n, n, 0, 1)),
 	}
-	// Invented quality figures: SSIM falls with R, faster for the uniform
-	// scheme and for zero filling.
-	loss := 0.022 * math.Pow(c.r-1, 1.25)
+	// Invented quality figures: SSIM falls with the achieved R, faster for
+	// the uniform scheme and for zero filling.
+	ra := float64(n) / float64(lines)
+	loss := 0.03 * math.Pow(ra-1, 1.25)
 	if c.uniform {
 		loss *= 1.35
 	}
@@ -170,12 +187,12 @@ func sampleCandidate(t testing.TB, c sampleCand, truth []float64, seed uint64) (
 		loss *= 0.55
 	}
 	ssim := 0.985 - loss
-	sd := 0.004 + 0.002*c.r
+	sd := 0.004 + 0.002*ra
 	bound := ssim - 1.895*sd/math.Sqrt(8) // Student t(0.95, 7) = 1.895 (statistics tables)
 	scan := sampleRefTime * float64(lines) / float64(n)
 	lambda := "none (zero-filled)"
 	if c.sparse {
-		lambda = fmt.Sprintf("λ = %.3g, golden-section search on a separate calibration draw", 0.004*c.r)
+		lambda = fmt.Sprintf("λ = %.3g, golden-section search on a separate calibration draw", 0.004*ra)
 	}
 	rc := ReportCandidate{
 		Label:  fmt.Sprintf("R = %s, %d lines", formatR(float64(n)/float64(lines)), lines),
@@ -183,8 +200,8 @@ func sampleCandidate(t testing.TB, c sampleCand, truth []float64, seed uint64) (
 		ScanTime: scan, Lambda: lambda,
 		Values: []ReportValue{
 			{Metric: "SSIM", Mean: ssim, Std: sd, Bound: bound, N: 8},
-			{Metric: "PSNR", Mean: 38 - 9*math.Log10(c.r), Std: 0.3, Bound: 37.8 - 9*math.Log10(c.r), N: 8},
-			{Metric: "NRMSE", Mean: 0.03 * c.r, Std: 0.004, Bound: 0.03*c.r + 0.003, N: 8},
+			{Metric: "PSNR", Mean: 38 - 9*math.Log10(ra), Std: 0.3, Bound: 37.8 - 9*math.Log10(ra), N: 8},
+			{Metric: "NRMSE", Mean: 0.03 * ra, Std: 0.004, Bound: 0.03*ra + 0.003, N: 8},
 		},
 		Meets: bound >= sampleBar,
 		Recon: imgs["recon"], Error: imgs["error"], Mask: imgs["mask"], PSF: imgs["psf"],
@@ -253,10 +270,15 @@ func sampleReport(t testing.TB) (Report, map[string][]byte) {
 		if !c.Meets {
 			continue
 		}
-		if best < 0 || c.ScanTime < r.Candidates[best].ScanTime {
+		// Shortest time first; equal times go to the better mean.
+		earlier := func(j int) bool {
+			o := r.Candidates[j]
+			return c.ScanTime < o.ScanTime || (c.ScanTime == o.ScanTime && c.Values[0].Mean > o.Values[0].Mean)
+		}
+		if best < 0 || earlier(best) {
 			best = i
 		}
-		if j := perCurve[k]; j < 0 || c.ScanTime < r.Candidates[j].ScanTime {
+		if j := perCurve[k]; j < 0 || earlier(j) {
 			perCurve[k] = i
 		}
 	}
@@ -750,9 +772,13 @@ func TestWriteReportRejectsBadInput(t *testing.T) {
 	if err := os.WriteFile(path, []byte("earlier report"), 0o644); err != nil {
 		t.Fatal(err)
 	}
+	base, _ := sampleReport(t)
+	if err := WriteReport(filepath.Join(t.TempDir(), "ok.html"), base); err != nil {
+		t.Fatalf("the unchanged sample is refused: %v", err)
+	}
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {
-			r, _ := sampleReport(t)
+			r := cloneReport(base)
 			c.change(&r)
 			err := WriteReport(path, r)
 			if err == nil || !strings.Contains(err.Error(), c.want) {
@@ -770,6 +796,17 @@ func TestWriteReportRejectsBadInput(t *testing.T) {
 	if err := WriteReport("", Report{}); err == nil {
 		t.Error("empty path accepted")
 	}
+}
+
+// cloneReport copies the parts of r that the bad-input cases change.
+func cloneReport(r Report) Report {
+	r.Candidates = append([]ReportCandidate(nil), r.Candidates...)
+	for i := range r.Candidates {
+		r.Candidates[i].Values = append([]ReportValue(nil), r.Candidates[i].Values...)
+	}
+	r.Table.Rows = append([]ReportRow(nil), r.Table.Rows...)
+	r.Charts = append([]ReportChart(nil), r.Charts...)
+	return r
 }
 
 func TestReportAcceptsSVGChart(t *testing.T) {
@@ -804,12 +841,52 @@ func TestNumericCell(t *testing.T) {
 	}
 }
 
-func TestReportStepperRunsInChromium(t *testing.T) {
+// stepperProbe is appended to a copy of the report for the browser test:
+// it drives the stepper like a person would (keys, buttons, slider, group
+// choice, list-all toggle) and records after each action which candidate is
+// current, how many candidates are visible and the start of the visible
+// reconstruction's data URI.
+const stepperProbe = `<script>
+(function () {
+  var log = [];
+  var list = document.getElementById("cand-list");
+  function snap(what) {
+    var vis = Array.prototype.filter.call(document.querySelectorAll("article.cand"), function (a) {
+      return getComputedStyle(a).display !== "none";
+    });
+    var img = vis.length ? vis[0].querySelector("figure.fig-recon img") : null;
+    log.push({what: what, current: list.getAttribute("data-current"), visible: vis.length,
+      time: vis.length ? vis[0].getAttribute("data-time") : "",
+      img: img ? img.getAttribute("src").slice(22, 400) : "",
+      max: document.getElementById("step-range").max});
+  }
+  function key(k) { document.body.dispatchEvent(new KeyboardEvent("keydown", {key: k, bubbles: true})); snap(k); }
+  snap("start");
+  key("ArrowLeft");
+  key("End");
+  key("Home");
+  key("ArrowRight");
+  document.getElementById("step-next").click(); snap("next");
+  var r = document.getElementById("step-range"); r.value = "0"; r.dispatchEvent(new Event("input")); snap("range0");
+  var g = document.getElementById("step-group"); g.value = ""; g.dispatchEvent(new Event("change")); snap("all");
+  document.getElementById("step-toggle").click(); snap("listall");
+  document.getElementById("step-toggle").click(); snap("stepagain");
+  document.body.setAttribute("data-probe", JSON.stringify(log));
+})();
+</script>`
+
+type probeStep struct {
+	What, Current, Time, Img, Max string
+	Visible                       int
+}
+
+func TestReportStepperInChromium(t *testing.T) {
 	// Reference: the Chromium browser (Debian chromium) runs the page's
-	// script and prints the resulting document (--dump-dom). The stepper
-	// must have started, shown itself and marked exactly one candidate as
-	// current: the recommended one. Skipped where chromium is not
-	// installed or with -short.
+	// script; --dump-dom prints the document afterwards. The stepper must
+	// start on the recommended candidate, show one candidate at a time,
+	// change the shown reconstruction as it steps through scan times, and
+	// list all candidates again on request. Skipped where chromium is not
+	// installed, or with -short.
 	if testing.Short() {
 		t.Skip("starts a browser")
 	}
@@ -817,8 +894,14 @@ func TestReportStepperRunsInChromium(t *testing.T) {
 	if err != nil {
 		t.Skip("chromium is not installed (Debian package chromium)")
 	}
-	path, _, _ := writeSample(t, false)
-	abs, _ := filepath.Abs(path)
+	path, r, _ := writeSample(t, false)
+	page := readReport(t, path)
+	probe := strings.Replace(page, "</body>", stepperProbe+"</body>", 1)
+	probePath := filepath.Join(filepath.Dir(path), "probe.html")
+	if err := os.WriteFile(probePath, []byte(probe), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	abs, _ := filepath.Abs(probePath)
 	cmd := exec.Command(bin, "--headless", "--no-sandbox", "--disable-gpu", "--disable-quic", "--no-first-run",
 		"--disable-background-networking", "--disable-component-update", "--disable-sync",
 		"--user-data-dir="+t.TempDir(), "--dump-dom", "file://"+abs)
@@ -828,23 +911,78 @@ func TestReportStepperRunsInChromium(t *testing.T) {
 	if err != nil {
 		t.Fatalf("chromium: %v\n%s", err, stderr.String())
 	}
-	page := string(dom)
-	if !strings.Contains(page, `data-stepper="ready"`) {
+	if !strings.Contains(string(dom), `data-stepper="ready"`) {
 		t.Fatal("the stepper script did not finish")
 	}
-	if strings.Contains(page, `id="stepper" class="stepper" hidden`) {
-		t.Error("the stepper stayed hidden")
+	m := regexp.MustCompile(`data-probe="([^"]*)"`).FindSubmatch(dom)
+	if m == nil {
+		t.Fatal("the probe recorded nothing (script error?)")
 	}
-	cur := regexp.MustCompile(`<article class="cand[^"]*\bcurrent\b[^"]*" id="(cand-\d+)"`).FindAllStringSubmatch(page, -1)
-	if len(cur) != 1 {
-		t.Fatalf("%d current candidates, want 1", len(cur))
+	var steps []probeStep
+	if err := json.Unmarshal([]byte(html.UnescapeString(string(m[1]))), &steps); err != nil {
+		t.Fatalf("probe output: %v", err)
 	}
-	pick := regexp.MustCompile(`<article class="cand[^"]*\bpick\b[^"]*" id="(cand-\d+)"`).FindStringSubmatch(page)
-	if pick == nil || pick[1] != cur[0][1] {
-		t.Errorf("stepper opens on %s, want the recommended %v", cur[0][1], pick)
+	at := map[string]probeStep{}
+	for _, s := range steps {
+		at[s.What] = s
 	}
-	if !strings.Contains(page, `id="cand-list" data-start=`) || !strings.Contains(page, "stepping") {
-		t.Error("the candidate list is not in stepping mode")
+	// The sample's pick and its group (variable-density, wavelet-L1).
+	pickID, group := "", []int{}
+	byTime := make([]int, len(r.Candidates))
+	for i := range byTime {
+		byTime[i] = i
+	}
+	sort.SliceStable(byTime, func(a, b int) bool { return r.Candidates[byTime[a]].ScanTime < r.Candidates[byTime[b]].ScanTime })
+	var pickGroup string
+	for k, i := range byTime {
+		if r.Candidates[i].Pick {
+			pickID, pickGroup = fmt.Sprintf("cand-%d", k+1), r.Candidates[i].Scheme+r.Candidates[i].Method
+		}
+	}
+	for k, i := range byTime {
+		if r.Candidates[i].Scheme+r.Candidates[i].Method == pickGroup {
+			group = append(group, k+1)
+		}
+	}
+	first, last := fmt.Sprintf("cand-%d", group[0]), fmt.Sprintf("cand-%d", group[len(group)-1])
+	checks := []struct {
+		what, current string
+		visible       int
+	}{
+		{"start", pickID, 1},
+		{"End", last, 1},
+		{"Home", first, 1},
+		{"ArrowRight", fmt.Sprintf("cand-%d", group[1]), 1},
+		{"next", fmt.Sprintf("cand-%d", group[2]), 1},
+		{"range0", first, 1},
+		{"all", first, 1},
+		{"listall", "", len(r.Candidates)},
+		{"stepagain", first, 1},
+	}
+	for _, c := range checks {
+		s, ok := at[c.what]
+		if !ok {
+			t.Errorf("%s: not recorded", c.what)
+			continue
+		}
+		if c.current != "" && s.Current != c.current {
+			t.Errorf("%s: current %s, want %s", c.what, s.Current, c.current)
+		}
+		if s.Visible != c.visible {
+			t.Errorf("%s: %d candidates visible, want %d", c.what, s.Visible, c.visible)
+		}
+	}
+	if at["start"].Img == "" || at["start"].Img == at["Home"].Img {
+		t.Error("the shown reconstruction does not change between the pick and the shortest scan")
+	}
+	if at["Home"].Time > at["End"].Time && len(at["Home"].Time) == len(at["End"].Time) {
+		t.Errorf("Home shows %s, End %s: not in order of scan time", at["Home"].Time, at["End"].Time)
+	}
+	if want := fmt.Sprint(len(group) - 1); at["start"].Max != want {
+		t.Errorf("slider max %s in the pick's group, want %s", at["start"].Max, want)
+	}
+	if want := fmt.Sprint(len(r.Candidates) - 1); at["all"].Max != want {
+		t.Errorf("slider max %s with all candidates, want %s", at["all"].Max, want)
 	}
 }
 
@@ -856,5 +994,62 @@ func BenchmarkWriteReport(b *testing.B) {
 		if err := WriteReport(path, r); err != nil {
 			b.Fatal(err)
 		}
+	}
+}
+
+func TestParetoFront(t *testing.T) {
+	// Worked by hand from the definition of Pareto dominance (Deb 2001,
+	// ch. 2): j dominates i when it is no longer and no worse, and
+	// strictly better in one of the two.
+	nan := math.NaN()
+	cases := []struct {
+		name   string
+		times  []float64
+		q      []float64
+		higher bool
+		want   []bool
+	}{
+		{"staircase", []float64{10, 20, 30, 40}, []float64{0.7, 0.8, 0.75, 0.9}, true, []bool{true, true, false, true}},
+		{"lower is better", []float64{10, 20, 30}, []float64{0.3, 0.2, 0.25}, false, []bool{true, true, false}},
+		{"equal time, better wins", []float64{10, 10, 20}, []float64{0.8, 0.9, 0.85}, true, []bool{false, true, false}},
+		{"exact ties both stay", []float64{10, 10}, []float64{0.8, 0.8}, true, []bool{true, true}},
+		{"NaN takes no part", []float64{10, nan, 30}, []float64{0.7, 0.99, nan}, true, []bool{true, false, false}},
+		{"one point", []float64{5}, []float64{0.1}, true, []bool{true}},
+		{"empty", nil, nil, true, []bool{}},
+	}
+	for _, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			got := ParetoFront(c.times, c.q, c.higher)
+			if fmt.Sprint(got) != fmt.Sprint(c.want) {
+				t.Errorf("ParetoFront(%v, %v, %v) = %v, want %v", c.times, c.q, c.higher, got, c.want)
+			}
+		})
+	}
+}
+
+func TestReportMarksParetoFront(t *testing.T) {
+	path, r, _ := writeSample(t, false)
+	page := readReport(t, path)
+	times := make([]float64, len(r.Candidates))
+	q := make([]float64, len(r.Candidates))
+	for i, c := range r.Candidates {
+		times[i], q[i] = c.ScanTime, c.Values[0].Mean
+	}
+	n := 0
+	for _, on := range ParetoFront(times, q, true) {
+		if on {
+			n++
+		}
+	}
+	if n < 2 || n == len(r.Candidates) {
+		t.Fatalf("sample front has %d of %d candidates; the test needs a proper subset", n, len(r.Candidates))
+	}
+	if got := strings.Count(page, `<span class="badge front"`); got != n {
+		t.Errorf("%d candidates marked on the Pareto front, want %d", got, n)
+	}
+	tbl := page[strings.Index(page, `<table class="pareto">`):]
+	tbl = tbl[:strings.Index(tbl, "</table>")]
+	if got := strings.Count(tbl, "<tr class="); got != n {
+		t.Errorf("Pareto table has %d rows, want %d", got, n)
 	}
 }
