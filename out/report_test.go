@@ -188,7 +188,7 @@ func sampleCandidate(t testing.TB, c sampleCand, truth []float64, seed uint64) (
 	}
 	ssim := 0.985 - loss
 	sd := 0.004 + 0.002*ra
-	bound := ssim - 1.895*sd/math.Sqrt(8) // Student t(0.95, 7) = 1.895 (statistics tables)
+	bound := ssim - 1.895*sd/math.Sqrt(8) // Student t(0.95, 7) = 1.895 (statistics tables; value from memory, only shapes invented data)
 	scan := sampleRefTime * float64(lines) / float64(n)
 	lambda := "none (zero-filled)"
 	if c.sparse {
