@@ -40,7 +40,6 @@ type Transform struct {
 	// synHi[2j], synHi[2j+1] = anaLo[2(P−j)+1], anaHi[2(P−j)+1], P = L/2 − 1.
 	anaLo, anaHi, synLo, synHi []float64
 	scratch                    []complex128 // ny×nx
-	buf                        [4][]float64 // polyphase rows, 2·(max(ny,nx)/2+L) floats each
 	srcs                       [][]float64  // the L source vectors of one output pair
 }
 
@@ -144,11 +143,7 @@ func New(ny, nx, levels int, name string) (*Transform, error) {
 }
 
 func (t *Transform) alloc() {
-	n := 2 * (max(t.nx, t.ny)/2 + t.fb.Len())
 	t.scratch = make([]complex128, t.ny*t.nx)
-	for i := range t.buf {
-		t.buf[i] = make([]float64, n)
-	}
 	t.srcs = make([][]float64, t.fb.Len())
 }
 
@@ -254,11 +249,13 @@ func (t *Transform) Inverse(dst, src []complex128) {
 	}
 }
 
-// The four passes below share one structure. Every output pair (lo, hi) is
-// a combination Σ_i a[i]·s_i, Σ_i b[i]·s_i of L source vectors s_i taken
-// from the input at shifts that depend on the pass, where a vector is a
-// whole image row (column passes) or a polyphase component of one row (row
-// passes). combine evaluates it with unit-stride loops.
+// The four passes share one structure. Every output pair (lo, hi) is a
+// combination Σ_i a[i]·s_i, Σ_i b[i]·s_i of L source vectors s_i taken from
+// the input at shifts that depend on the pass. In the column passes (here) a
+// vector is a whole image row and combine sweeps along it; the row passes
+// (rows.go) sweep along one row, reading complex samples at stride 2 or
+// writing interleaved outputs. Inner loops run over the outputs, not over
+// the taps, so that no loop-carried sum limits the floating-point rate.
 //
 // Analysis (Mallat 1989): a[k] = Σ_m anaLo[m]·x[(2k + base + m) mod n],
 // d[k] likewise with anaHi, base = 1 − L/2 (the offset of the periodization
@@ -280,107 +277,10 @@ func (t *Transform) analyseColumns(dst, src []float64, h, w int) {
 	srcs := t.srcs
 	for k := range half {
 		for m := range L {
-			r := mod(2*k+base+m, h)
+			r := wrap(2*k+base+m, h)
 			srcs[m] = src[r*stride : r*stride+ww]
 		}
 		combine(dst[k*stride:k*stride+ww], dst[(k+half)*stride:(k+half)*stride+ww], srcs, t.anaLo, t.anaHi)
-	}
-}
-
-// analyseRows filters along x each of the first h rows (first w columns) of
-// src into dst: low-pass to columns [0,w/2), high-pass to [w/2,w).
-func (t *Transform) analyseRows(dst, src []float64, h, w int) {
-	L := len(t.anaLo)
-	stride := 2 * t.nx
-	half := w / 2
-	base := 1 - L/2
-	n := half + L/2 - 1 // polyphase samples needed
-	ee := t.buf[0][:2*n]
-	eo := t.buf[1][:2*n]
-	srcs := t.srcs
-	for m := range L {
-		if m%2 == 0 {
-			srcs[m] = ee[m : m+w]
-		} else {
-			srcs[m] = eo[m-1 : m-1+w]
-		}
-	}
-	e0 := 2 * mod(base, w)
-	for r := range h {
-		row := src[r*stride : r*stride+2*w]
-		// ee[j] = x[(base + 2j) mod w], eo[j] = x[(base + 2j + 1) mod w]
-		e := e0
-		for j := range n {
-			o := e + 2
-			if o == 2*w {
-				o = 0
-			}
-			ee[2*j], ee[2*j+1] = row[e], row[e+1]
-			eo[2*j], eo[2*j+1] = row[o], row[o+1]
-			e = o + 2
-			if e == 2*w {
-				e = 0
-			}
-		}
-		out := dst[r*stride : r*stride+2*w]
-		combine(out[:w], out[w:2*w], srcs, t.anaLo, t.anaHi)
-	}
-}
-
-// synthesiseRows inverts analyseRows on the first h rows of src into dst.
-func (t *Transform) synthesiseRows(dst, src []float64, h, w int) {
-	L := len(t.anaLo)
-	stride := 2 * t.nx
-	half := w / 2
-	base := 1 - L/2
-	P := L/2 - 1
-	n := half + P
-	ea := t.buf[0][:2*n]
-	ed := t.buf[1][:2*n]
-	xe := t.buf[2][:w]
-	xo := t.buf[3][:w]
-	srcs := t.srcs
-	for j := range L / 2 {
-		srcs[2*j] = ea[2*j : 2*j+w]
-		srcs[2*j+1] = ed[2*j : 2*j+w]
-	}
-	s := mod(base, w) // column of the output of Q = 0
-	for r := range h {
-		row := src[r*stride : r*stride+2*w]
-		// ea[q+P] = a[q mod half], ed likewise, q = −P … half−1
-		j := 2 * mod(-P, half)
-		for i := 0; i < 2*n; i += 2 {
-			ea[i], ea[i+1] = row[j], row[j+1]
-			ed[i], ed[i+1] = row[w+j], row[w+j+1]
-			j += 2
-			if j == w {
-				j = 0
-			}
-		}
-		combine(xe, xo, srcs, t.synLo, t.synHi)
-		// Output i of the interleaved sequence xe0, xo0, xe1, … lands on
-		// column (s + i) mod w.
-		out := dst[r*stride : r*stride+2*w]
-		interleave(out[2*s:], xe, xo, 0, w-s)
-		interleave(out, xe, xo, w-s, w)
-	}
-}
-
-// interleave writes items i0 … i1−1 of the sequence xe[0], xo[0], xe[1],
-// xo[1], … (complex values stored as float pairs) to out[0], out[1], ….
-func interleave(out, xe, xo []float64, i0, i1 int) {
-	i := i0
-	if i < i1 && i%2 == 1 {
-		out[0], out[1] = xo[i-1], xo[i]
-		out = out[2:]
-		i++
-	}
-	for ; i+1 < i1; i += 2 {
-		out[0], out[1], out[2], out[3] = xe[i], xe[i+1], xo[i], xo[i+1]
-		out = out[4:]
-	}
-	if i < i1 {
-		out[0], out[1] = xe[i], xe[i+1]
 	}
 }
 
@@ -396,11 +296,11 @@ func (t *Transform) synthesiseColumns(dst, src []float64, h, w int) {
 	srcs := t.srcs
 	for Q := range half {
 		for j := range L / 2 {
-			q := mod(Q-P+j, half)
+			q := wrap(Q-P+j, half)
 			srcs[2*j] = src[q*stride : q*stride+ww]
 			srcs[2*j+1] = src[(q+half)*stride : (q+half)*stride+ww]
 		}
-		n0 := mod(2*Q+base, h)
+		n0 := wrap(2*Q+base, h)
 		n1 := n0 + 1
 		if n1 == h {
 			n1 = 0
@@ -467,10 +367,15 @@ func sweep2(lo, hi, s0, s1 []float64, a0, a1, b0, b1 float64, set bool) {
 	}
 }
 
-func mod(a, n int) int {
-	a %= n
-	if a < 0 {
+// wrap reduces a modulo n > 0 by repeated addition or subtraction, which
+// is cheaper than a division for the small offsets that occur here (the
+// level rule keeps every filter offset within one period).
+func wrap(a, n int) int {
+	for a < 0 {
 		a += n
+	}
+	for a >= n {
+		a -= n
 	}
 	return a
 }

@@ -66,6 +66,10 @@ cases = [
     (32, 32, 1, "db7"),
     (64, 64, 2, "db8"),
     (40, 40, 1, "db10"),
+    # at the deepest level the size allows: the wrap-around paths dominate
+    (56, 112, 3, "db4"),
+    (38, 38, 1, "db10"),
+    (36, 24, 2, "db3"),
 ]
 for ny, nx, level, name in cases:
     re, im = lcg_image(ny, nx)
