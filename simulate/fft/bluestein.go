@@ -22,7 +22,7 @@ func newBluestein(n int) (*bluestein, error) {
 	for m < 2*n-1 {
 		m *= 2
 	}
-	inner, err := newTables(m)
+	inner, err := newTables(m, false)
 	if err != nil {
 		return nil, err
 	}

@@ -17,8 +17,10 @@ package fft
 // Re w_i, tw[2·((r-1)·p+i-1)+1] = Im w_i, read by constant offsets from one
 // base. The arithmetic is written on real and imaginary parts and ordered so
 // that each output is stored as soon as it is ready, which keeps register
-// pressure low. Every butterfly reads all its inputs before its first store,
-// so a pass may write over its own input.
+// pressure low. The last-pass butterflies read all their inputs before their
+// first store, so a last pass may write over its own input (exec relies on
+// this when a single pass runs in place); the radix-8 twiddled passes read
+// their inputs twice instead and never run in place.
 
 const (
 	sin60  = 0.86602540378443864676372317075293618  // sin(π/3)
@@ -33,7 +35,7 @@ const (
 func r2(y, x []complex128, tw []float64, g *geom) {
 	s := g.s
 	for p := range g.m {
-		w := tw[2*p : 2*p+2 : 2*p+2]
+		w := [2]float64(tw[2*p : 2*p+2])
 		xb, yb := p*g.xstep, p*g.ystep
 		x0 := x[xb+g.xo[0] : xb+g.xo[0]+s]
 		x1 := x[xb+g.xo[1] : xb+g.xo[1]+s][:len(x0)]
@@ -73,7 +75,7 @@ func r2last(y, x []complex128, g *geom, scale float64) {
 func r3(y, x []complex128, tw []float64, g *geom) {
 	s := g.s
 	for p := range g.m {
-		w := tw[4*p : 4*p+4 : 4*p+4]
+		w := [4]float64(tw[4*p : 4*p+4])
 		xb, yb := p*g.xstep, p*g.ystep
 		x0 := x[xb+g.xo[0] : xb+g.xo[0]+s]
 		x1 := x[xb+g.xo[1] : xb+g.xo[1]+s][:len(x0)]
@@ -128,7 +130,7 @@ func r3last(y, x []complex128, g *geom, scale float64) {
 func r4(y, x []complex128, tw []float64, g *geom) {
 	s := g.s
 	for p := range g.m {
-		w := tw[6*p : 6*p+6 : 6*p+6]
+		w := [6]float64(tw[6*p : 6*p+6])
 		xb, yb := p*g.xstep, p*g.ystep
 		x0 := x[xb+g.xo[0] : xb+g.xo[0]+s]
 		x1 := x[xb+g.xo[1] : xb+g.xo[1]+s][:len(x0)]
@@ -189,9 +191,37 @@ func r4last(y, x []complex128, g *geom, scale float64) {
 	}
 }
 
-// r4s1 is r4 for s = 1 (first pass of a single sequence), where every
-// butterfly has its own twiddles and writes 4 adjacent outputs.
+// r4s1 is r4 for s = 1 (first pass of a single sequence) with outputs in
+// natural slot order: every butterfly has its own twiddles and writes 4
+// adjacent outputs.
 func r4s1(y, x []complex128, tw []float64, g *geom) {
+	m := g.m
+	x0 := x[g.xo[0] : g.xo[0]+m]
+	x1 := x[g.xo[1] : g.xo[1]+m][:len(x0)]
+	x2 := x[g.xo[2] : g.xo[2]+m][:len(x0)]
+	x3 := x[g.xo[3] : g.xo[3]+m][:len(x0)]
+	for p := range x0 {
+		w := tw[6*p : 6*p+6 : 6*p+6]
+		o := y[4*p : 4*p+4 : 4*p+4]
+		u, v := x0[p], x2[p]
+		t0r, t0i := real(u)+real(v), imag(u)+imag(v)
+		t1r, t1i := real(u)-real(v), imag(u)-imag(v)
+		u, v = x1[p], x3[p]
+		t2r, t2i := real(u)+real(v), imag(u)+imag(v)
+		t3r, t3i := real(u)-real(v), imag(u)-imag(v)
+		vr, vi := t0r+t2r, t0i+t2i
+		o[0] = complex(vr, vi)
+		vr, vi = t0r-t2r, t0i-t2i
+		o[2] = complex(vr*w[2]-vi*w[3], vr*w[3]+vi*w[2])
+		vr, vi = t1r+t3i, t1i-t3r
+		o[1] = complex(vr*w[0]-vi*w[1], vr*w[1]+vi*w[0])
+		vr, vi = t1r-t3i, t1i+t3r
+		o[3] = complex(vr*w[4]-vi*w[5], vr*w[5]+vi*w[4])
+	}
+}
+
+// r4s1p is r4s1 with permuted output slots (inverse or centred).
+func r4s1p(y, x []complex128, tw []float64, g *geom) {
 	m := g.m
 	x0 := x[g.xo[0] : g.xo[0]+m]
 	x1 := x[g.xo[1] : g.xo[1]+m][:len(x0)]
@@ -225,7 +255,7 @@ func r4s1(y, x []complex128, tw []float64, g *geom) {
 func r5(y, x []complex128, tw []float64, g *geom) {
 	s := g.s
 	for p := range g.m {
-		w := tw[8*p : 8*p+8 : 8*p+8]
+		w := [8]float64(tw[8*p : 8*p+8])
 		xb, yb := p*g.xstep, p*g.ystep
 		x0 := x[xb+g.xo[0] : xb+g.xo[0]+s]
 		x1 := x[xb+g.xo[1] : xb+g.xo[1]+s][:len(x0)]
@@ -308,11 +338,12 @@ func r5last(y, x []complex128, g *geom, scale float64) {
 
 // r8 is the radix-8 pass: two 4-point DFTs, of the sums x_k + x_(k+4) (even
 // outputs) and of the differences x_k - x_(k+4) rotated by exp(-iπk/4)
-// (odd outputs).
+// (odd outputs). The inputs are read again for the second half, which is
+// cheaper than keeping all sixteen values in registers.
 func r8(y, x []complex128, tw []float64, g *geom) {
 	s := g.s
 	for p := range g.m {
-		w := tw[14*p : 14*p+14 : 14*p+14]
+		w := [14]float64(tw[14*p : 14*p+14])
 		xb, yb := p*g.xstep, p*g.ystep
 		x0 := x[xb+g.xo[0] : xb+g.xo[0]+s]
 		x1 := x[xb+g.xo[1] : xb+g.xo[1]+s][:len(x0)]
@@ -333,18 +364,14 @@ func r8(y, x []complex128, tw []float64, g *geom) {
 		for q := range x0 {
 			u, v := x0[q], x4[q]
 			a0r, a0i := real(u)+real(v), imag(u)+imag(v)
-			a4r, a4i := real(u)-real(v), imag(u)-imag(v)
 			u, v = x2[q], x6[q]
 			a2r, a2i := real(u)+real(v), imag(u)+imag(v)
-			a6r, a6i := real(u)-real(v), imag(u)-imag(v)
-			u, v = x1[q], x5[q]
-			a1r, a1i := real(u)+real(v), imag(u)+imag(v)
-			a5r, a5i := real(u)-real(v), imag(u)-imag(v)
-			u, v = x3[q], x7[q]
-			a3r, a3i := real(u)+real(v), imag(u)+imag(v)
-			a7r, a7i := real(u)-real(v), imag(u)-imag(v)
 			b0r, b0i := a0r+a2r, a0i+a2i
 			b2r, b2i := a0r-a2r, a0i-a2i
+			u, v = x1[q], x5[q]
+			a1r, a1i := real(u)+real(v), imag(u)+imag(v)
+			u, v = x3[q], x7[q]
+			a3r, a3i := real(u)+real(v), imag(u)+imag(v)
 			b1r, b1i := a1r+a3r, a1i+a3i
 			b3r, b3i := a1i-a3i, a3r-a1r
 			vr, vi := b0r+b1r, b0i+b1i
@@ -355,10 +382,18 @@ func r8(y, x []complex128, tw []float64, g *geom) {
 			y2[q] = complex(vr*w[2]-vi*w[3], vr*w[3]+vi*w[2])
 			vr, vi = b2r-b3r, b2i-b3i
 			y6[q] = complex(vr*w[10]-vi*w[11], vr*w[11]+vi*w[10])
+			u, v = x1[q], x5[q]
+			a5r, a5i := real(u)-real(v), imag(u)-imag(v)
+			u, v = x3[q], x7[q]
+			a7r, a7i := real(u)-real(v), imag(u)-imag(v)
 			er, ei := a5r-a7r, a5i-a7i
 			fr, fi := a5r+a7r, a5i+a7i
 			d1r, d1i := (er+fi)*sqrtH, (ei-fr)*sqrtH
 			d3r, d3i := (fi-er)*sqrtH, -(ei+fr)*sqrtH
+			u, v = x0[q], x4[q]
+			a4r, a4i := real(u)-real(v), imag(u)-imag(v)
+			u, v = x2[q], x6[q]
+			a6r, a6i := real(u)-real(v), imag(u)-imag(v)
 			d0r, d0i := a4r+a6i, a4i-a6r
 			d2r, d2i := a4r-a6i, a4i+a6r
 			vr, vi = d0r+d1r, d0i+d1i
@@ -437,9 +472,69 @@ func r8last(y, x []complex128, g *geom, scale float64) {
 	}
 }
 
-// r8s1 is r8 for s = 1 (first pass of a single sequence), where every
-// butterfly has its own twiddles and writes 8 adjacent outputs.
+// r8s1 is r8 for s = 1 (first pass of a single sequence) with outputs in
+// natural slot order: every butterfly has its own twiddles and writes 8
+// adjacent outputs.
 func r8s1(y, x []complex128, tw []float64, g *geom) {
+	m := g.m
+	x0 := x[g.xo[0] : g.xo[0]+m]
+	x1 := x[g.xo[1] : g.xo[1]+m][:len(x0)]
+	x2 := x[g.xo[2] : g.xo[2]+m][:len(x0)]
+	x3 := x[g.xo[3] : g.xo[3]+m][:len(x0)]
+	x4 := x[g.xo[4] : g.xo[4]+m][:len(x0)]
+	x5 := x[g.xo[5] : g.xo[5]+m][:len(x0)]
+	x6 := x[g.xo[6] : g.xo[6]+m][:len(x0)]
+	x7 := x[g.xo[7] : g.xo[7]+m][:len(x0)]
+	for p := range x0 {
+		w := tw[14*p : 14*p+14 : 14*p+14]
+		o := y[8*p : 8*p+8 : 8*p+8]
+		u, v := x0[p], x4[p]
+		a0r, a0i := real(u)+real(v), imag(u)+imag(v)
+		u, v = x2[p], x6[p]
+		a2r, a2i := real(u)+real(v), imag(u)+imag(v)
+		b0r, b0i := a0r+a2r, a0i+a2i
+		b2r, b2i := a0r-a2r, a0i-a2i
+		u, v = x1[p], x5[p]
+		a1r, a1i := real(u)+real(v), imag(u)+imag(v)
+		u, v = x3[p], x7[p]
+		a3r, a3i := real(u)+real(v), imag(u)+imag(v)
+		b1r, b1i := a1r+a3r, a1i+a3i
+		b3r, b3i := a1i-a3i, a3r-a1r
+		vr, vi := b0r+b1r, b0i+b1i
+		o[0] = complex(vr, vi)
+		vr, vi = b0r-b1r, b0i-b1i
+		o[4] = complex(vr*w[6]-vi*w[7], vr*w[7]+vi*w[6])
+		vr, vi = b2r+b3r, b2i+b3i
+		o[2] = complex(vr*w[2]-vi*w[3], vr*w[3]+vi*w[2])
+		vr, vi = b2r-b3r, b2i-b3i
+		o[6] = complex(vr*w[10]-vi*w[11], vr*w[11]+vi*w[10])
+		u, v = x1[p], x5[p]
+		a5r, a5i := real(u)-real(v), imag(u)-imag(v)
+		u, v = x3[p], x7[p]
+		a7r, a7i := real(u)-real(v), imag(u)-imag(v)
+		er, ei := a5r-a7r, a5i-a7i
+		fr, fi := a5r+a7r, a5i+a7i
+		d1r, d1i := (er+fi)*sqrtH, (ei-fr)*sqrtH
+		d3r, d3i := (fi-er)*sqrtH, -(ei+fr)*sqrtH
+		u, v = x0[p], x4[p]
+		a4r, a4i := real(u)-real(v), imag(u)-imag(v)
+		u, v = x2[p], x6[p]
+		a6r, a6i := real(u)-real(v), imag(u)-imag(v)
+		d0r, d0i := a4r+a6i, a4i-a6r
+		d2r, d2i := a4r-a6i, a4i+a6r
+		vr, vi = d0r+d1r, d0i+d1i
+		o[1] = complex(vr*w[0]-vi*w[1], vr*w[1]+vi*w[0])
+		vr, vi = d0r-d1r, d0i-d1i
+		o[5] = complex(vr*w[8]-vi*w[9], vr*w[9]+vi*w[8])
+		vr, vi = d2r+d3r, d2i+d3i
+		o[3] = complex(vr*w[4]-vi*w[5], vr*w[5]+vi*w[4])
+		vr, vi = d2r-d3r, d2i-d3i
+		o[7] = complex(vr*w[12]-vi*w[13], vr*w[13]+vi*w[12])
+	}
+}
+
+// r8s1p is r8s1 with permuted output slots (inverse or centred).
+func r8s1p(y, x []complex128, tw []float64, g *geom) {
 	m := g.m
 	x0 := x[g.xo[0] : g.xo[0]+m]
 	x1 := x[g.xo[1] : g.xo[1]+m][:len(x0)]
@@ -461,18 +556,14 @@ func r8s1(y, x []complex128, tw []float64, g *geom) {
 		o := y[8*p : 8*p+8 : 8*p+8]
 		u, v := x0[p], x4[p]
 		a0r, a0i := real(u)+real(v), imag(u)+imag(v)
-		a4r, a4i := real(u)-real(v), imag(u)-imag(v)
 		u, v = x2[p], x6[p]
 		a2r, a2i := real(u)+real(v), imag(u)+imag(v)
-		a6r, a6i := real(u)-real(v), imag(u)-imag(v)
-		u, v = x1[p], x5[p]
-		a1r, a1i := real(u)+real(v), imag(u)+imag(v)
-		a5r, a5i := real(u)-real(v), imag(u)-imag(v)
-		u, v = x3[p], x7[p]
-		a3r, a3i := real(u)+real(v), imag(u)+imag(v)
-		a7r, a7i := real(u)-real(v), imag(u)-imag(v)
 		b0r, b0i := a0r+a2r, a0i+a2i
 		b2r, b2i := a0r-a2r, a0i-a2i
+		u, v = x1[p], x5[p]
+		a1r, a1i := real(u)+real(v), imag(u)+imag(v)
+		u, v = x3[p], x7[p]
+		a3r, a3i := real(u)+real(v), imag(u)+imag(v)
 		b1r, b1i := a1r+a3r, a1i+a3i
 		b3r, b3i := a1i-a3i, a3r-a1r
 		vr, vi := b0r+b1r, b0i+b1i
@@ -483,10 +574,18 @@ func r8s1(y, x []complex128, tw []float64, g *geom) {
 		o[p2] = complex(vr*w[2]-vi*w[3], vr*w[3]+vi*w[2])
 		vr, vi = b2r-b3r, b2i-b3i
 		o[p6] = complex(vr*w[10]-vi*w[11], vr*w[11]+vi*w[10])
+		u, v = x1[p], x5[p]
+		a5r, a5i := real(u)-real(v), imag(u)-imag(v)
+		u, v = x3[p], x7[p]
+		a7r, a7i := real(u)-real(v), imag(u)-imag(v)
 		er, ei := a5r-a7r, a5i-a7i
 		fr, fi := a5r+a7r, a5i+a7i
 		d1r, d1i := (er+fi)*sqrtH, (ei-fr)*sqrtH
 		d3r, d3i := (fi-er)*sqrtH, -(ei+fr)*sqrtH
+		u, v = x0[p], x4[p]
+		a4r, a4i := real(u)-real(v), imag(u)-imag(v)
+		u, v = x2[p], x6[p]
+		a6r, a6i := real(u)-real(v), imag(u)-imag(v)
 		d0r, d0i := a4r+a6i, a4i-a6r
 		d2r, d2i := a4r-a6i, a4i+a6r
 		vr, vi = d0r+d1r, d0i+d1i

@@ -18,7 +18,7 @@ type Plan struct {
 
 // NewPlan returns a plan for transforms of length n ≥ 1.
 func NewPlan(n int) (*Plan, error) {
-	t, err := newTables(n)
+	t, err := newTables(n, false)
 	if err != nil {
 		return nil, err
 	}

@@ -47,15 +47,13 @@ func NewPlan2D(ny, nx int) (*Plan2D, error) {
 	if ny > maxLen2D/nx {
 		return nil, fmt.Errorf("fft: 2D transform of %d×%d values exceeds the supported maximum %d", ny, nx, maxLen2D)
 	}
-	rows, err := newTables(nx)
+	rows, err := newTables(nx, false)
 	if err != nil {
 		return nil, err
 	}
-	cols := rows
-	if ny != nx {
-		if cols, err = newTables(ny); err != nil {
-			return nil, err
-		}
+	cols, err := newTables(ny, true)
+	if err != nil {
+		return nil, err
 	}
 	return newPlan2DFrom(ny, nx, rows, cols), nil
 }

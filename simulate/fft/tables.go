@@ -48,14 +48,22 @@ type tables struct {
 
 var errLen = errors.New("fft: transform length must be at least 1")
 
-func newTables(n int) (*tables, error) {
+// newTables makes the tables for length n. batched selects the radices that
+// run fastest when many sequences are interleaved (the column pass of a 2D
+// transform): radix 4, whose butterfly keeps all its pointers in registers
+// over the long inner loops. Otherwise radix 8 is used, which needs fewer
+// passes.
+func newTables(n int, batched bool) (*tables, error) {
 	if n < 1 {
 		return nil, errLen
 	}
 	if n > maxLen {
 		return nil, fmt.Errorf("fft: transform length %d exceeds the supported maximum %d", n, maxLen)
 	}
-	radices, ok := factor(n)
+	radices, ok := factor(n, !batched)
+	if tuneRadices != nil && prod(tuneRadices) == n && !batched {
+		radices = tuneRadices
+	}
 	if !ok {
 		b, err := newBluestein(n)
 		if err != nil {
@@ -100,20 +108,20 @@ func newTables(n int) (*tables, error) {
 }
 
 // factor splits n into the radices of the stages, in the order they run. The
-// power of two becomes radix-8 stages followed by one or two radix-4 stages
+// power of two becomes radix-8 stages (if use8) followed by radix-4 stages
 // (or a single radix 2 for n = 2·odd); the odd part becomes 3s, 5s and other
 // primes up to maxDirectPrime, run between the last power-of-two stage and
 // the others so that a multiple of 4 always starts and ends with an even
 // radix (needed by the centred shortcut of exec). factor reports false when n
 // has a prime factor above maxDirectPrime.
-func factor(n int) ([]int, bool) {
+func factor(n int, use8 bool) ([]int, bool) {
 	e := 0
 	for n%2 == 0 {
 		e++
 		n /= 2
 	}
 	var pow2 []int
-	for ; e >= 3 && e != 4; e -= 3 {
+	for ; use8 && e >= 3 && e != 4; e -= 3 {
 		pow2 = append(pow2, 8)
 	}
 	for ; e >= 2; e -= 2 {
@@ -220,6 +228,7 @@ const maxRadix = maxDirectPrime
 type geom struct {
 	m, s         int
 	xstep, ystep int
+	natural      bool // yo[i] == i·s: outputs in natural slot order
 	xo, yo       [maxRadix]int
 }
 
@@ -285,6 +294,7 @@ func (st *stage) geometry(g *geom, first, last bool, l layout, inv, centred bool
 			orot = r / 2
 		}
 	}
+	g.natural = !inv && orot == 0
 	for i := range r {
 		j := i
 		if inv && i != 0 {
@@ -341,16 +351,22 @@ func (st *stage) geometry(g *geom, first, last bool, l layout, inv, centred bool
 func run(st *stage, y, x []complex128, tw []float64, g *geom, wk *work) {
 	switch st.radix {
 	case 8:
-		if g.s == 1 {
-			r8s1(y, x, tw, g)
-		} else {
+		switch {
+		case g.s != 1:
 			r8(y, x, tw, g)
+		case g.natural:
+			r8s1(y, x, tw, g)
+		default:
+			r8s1p(y, x, tw, g)
 		}
 	case 4:
-		if g.s == 1 {
-			r4s1(y, x, tw, g)
-		} else {
+		switch {
+		case g.s != 1:
 			r4(y, x, tw, g)
+		case g.natural:
+			r4s1(y, x, tw, g)
+		default:
+			r4s1p(y, x, tw, g)
 		}
 	case 2:
 		r2(y, x, tw, g)
@@ -378,4 +394,14 @@ func runLast(st *stage, y, x []complex128, g *geom, scale float64, wk *work) {
 	default:
 		rgenlast(y, x, g, st.radix, st.gen, scale, wk.gen)
 	}
+}
+
+var tuneRadices []int
+
+func prod(r []int) int {
+	p := 1
+	for _, v := range r {
+		p *= v
+	}
+	return p
 }
