@@ -214,8 +214,8 @@ func objective(op simulate.Operator, y []complex128, prior Prior, lambda float64
 }
 
 // EstimateNormSq estimates ‖E‖² = λ_max(E^H E), the Lipschitz constant of the
-// gradient of ½‖E x − y‖², by power iteration (Golub GH, Van Loan CF, Matrix
-// Computations, 4th ed., 2013, §8.2.1) from a seeded random start, stopping
+// gradient of ½‖E x − y‖², by the power method (Golub GH, Van Loan CF,
+// Matrix Computations, 4th ed., 2013) from a seeded random start, stopping
 // when the Rayleigh quotient changes by less than tol relative, or after
 // maxIter iterations. The estimate approaches ‖E‖² from below.
 func EstimateNormSq(op simulate.Operator, maxIter int, tol float64) float64 {

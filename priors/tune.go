@@ -15,7 +15,7 @@ type LambdaScore struct {
 // TuneLambda searches [lo, hi] for the λ that minimises score, by
 // golden-section search over log λ (Kiefer J, "Sequential minimax search for
 // a maximum", Proc Am Math Soc 1953;4:502-506; Press WH et al., Numerical
-// Recipes, 3rd ed., CUP 2007, §10.2). It calls score exactly evals times
+// Recipes, 3rd ed., CUP 2007, §10.2, section from memory). It calls score exactly evals times
 // (at least 2) and returns the best λ seen together with every evaluation in
 // the order made. After evals calls the bracket around the minimiser has
 // shrunk to (log hi − log lo)·0.618^(evals−1) in log λ.

@@ -18,7 +18,7 @@ import (
 // soft-thresholding", IEEE Trans Inf Theory 1995;41:613-627; for the prox of
 // a norm composed with an orthogonal map see Combettes PL, Wajs VR, Multiscale
 // Model Simul 2005;4:1168-1200, and Parikh N, Boyd S, Found Trends Optim
-// 2014;1:127-239, §6.5).
+// 2014;1:127-239, §6.5, section from memory).
 //
 // A WaveletL1 holds scratch space: it is not safe for concurrent use; make one
 // per goroutine with Clone. Prox and Value allocate nothing.

@@ -8,8 +8,9 @@ import (
 )
 
 // The closed-form soft threshold, written out from its definition as the
-// proximal map of t·|c| on the complex plane (Donoho 1995; Parikh & Boyd
-// 2014, §6.5.2): c·max(0, 1 − t/|c|).
+// proximal map of t·|c| on the complex plane (Donoho DL, IEEE Trans Inf
+// Theory 1995;41:613-627; Parikh N, Boyd S, Found Trends Optim 2014;1:127-239;
+// section numbers here and below from memory): c·max(0, 1 − t/|c|).
 func closedFormSoft(c complex128, t float64) complex128 {
 	m := cmplx.Abs(c)
 	if m <= t {
@@ -72,7 +73,8 @@ func TestWaveletL1ProxIsSoftThreshold(t *testing.T) {
 }
 
 // The prox is the minimiser of ½‖u − v‖² + t·R(u): no perturbation of it
-// scores lower (definition of the proximal map; Moreau 1965).
+// scores lower (definition of the proximal map: Moreau JJ, Bull Soc Math
+// France 1965;93:273-299).
 func TestWaveletL1ProxMinimises(t *testing.T) {
 	p, err := NewWaveletL1(16, 32, 2, "db2")
 	if err != nil {

@@ -167,7 +167,7 @@ func binomial(n, k int) float64 {
 // polyRoots returns all complex roots of the real polynomial with ascending
 // coefficients p, by the simultaneous (Weierstrass / Durand-Kerner)
 // iteration followed by Newton polishing; see Press WH et al., Numerical
-// Recipes, 3rd ed., CUP 2007, §9.5.
+// Recipes, 3rd ed., CUP 2007, §9.5 (section from memory).
 func polyRoots(p []float64) ([]complex128, error) {
 	deg := len(p) - 1
 	if deg < 1 {

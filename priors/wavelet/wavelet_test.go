@@ -132,7 +132,8 @@ func TestFiltersAgainstPyWavelets(t *testing.T) {
 }
 
 // The defining conditions of an orthonormal Daubechies scaling filter with N
-// vanishing moments (Daubechies 1992, §6.1 and §5.1): Σ h_n = √2,
+// vanishing moments (Daubechies 1992, ch. 5 and §6.1; chapter numbers from memory, the
+// conditions themselves are the textbook ones): Σ h_n = √2,
 // Σ h_n h_{n+2k} = δ_k, and Σ (−1)^n n^p h_n = 0 for p = 0 … N−1.
 func TestFilterDefiningConditions(t *testing.T) {
 	for _, name := range Names() {
@@ -300,8 +301,8 @@ func TestIsometryAndAdjoint(t *testing.T) {
 }
 
 // An image that varies only along x has no high-pass content along y, so its
-// DetailY and DetailXY bands vanish (Σ g_n = 0 for the high-pass filter,
-// Daubechies 1992 §5.1); likewise with x and y exchanged. This pins the band
+// DetailY and DetailXY bands vanish (Σ g_n = 0 for a high-pass filter, a
+// textbook property); likewise with x and y exchanged. This pins the band
 // labels returned by Subbands.
 func TestBandOrientation(t *testing.T) {
 	const ny, nx = 32, 64
