@@ -16,7 +16,13 @@ import (
 	"strings"
 
 	"github.com/BurntSushi/toml"
+
+	"accelplan/trajectories"
 )
+
+func trajectoriesRadialReference(n int, half bool) int {
+	return trajectories.RadialReferenceSpokes(n, half)
+}
 
 //go:embed builtin/*.toml
 var builtinFS embed.FS
@@ -67,6 +73,11 @@ type Scanner struct {
 	EchoTrain    int     `toml:"echo_train"`
 	Averages     int     `toml:"averages"`
 	ReferenceSNR float64 `toml:"reference_snr"`
+	// Gradient limits and sampling of spiral designs.
+	MaxGradient  float64 `toml:"max_gradient_mt_per_m"`
+	MaxSlew      float64 `toml:"max_slew_t_per_m_per_s"`
+	DwellUs      float64 `toml:"dwell_us"`
+	MaxReadoutMs float64 `toml:"max_readout_ms"`
 }
 
 // Scheme is one sampling scheme with the accelerations to try.
@@ -76,7 +87,19 @@ type Scheme struct {
 	Accelerations    []float64 `toml:"accelerations"`
 	CalibrationLines int       `toml:"calibration_lines"`
 	DensityPower     float64   `toml:"density_power"`
+	// Radial spokes.
+	SpokeOrder          string  `toml:"spoke_order"`
+	TinyGoldenN         int     `toml:"tiny_golden_n"`
+	HalfSpokes          bool    `toml:"half_spokes"`
+	ReadoutOversampling float64 `toml:"readout_oversampling"`
+	// Spiral interleaves.
+	Interleaves       []int   `toml:"interleaves"`
+	EdgeUndersampling float64 `toml:"edge_undersampling"`
+	DenseFraction     float64 `toml:"dense_fraction"`
 }
+
+// NonCartesian reports whether the scheme samples off the Cartesian grid.
+func (s Scheme) NonCartesian() bool { return s.Pattern == PatternRadial || s.Pattern == PatternSpiral }
 
 // Recon is one reconstruction method and its parameters.
 type Recon struct {
@@ -99,6 +122,8 @@ type Acceptance struct {
 const (
 	PatternUniform = "cartesian-uniform"
 	PatternRandom  = "cartesian-random"
+	PatternRadial  = "radial"
+	PatternSpiral  = "spiral"
 
 	MethodZeroFilled   = "zero-filled"
 	MethodFISTAWavelet = "fista-wavelet"
@@ -109,11 +134,12 @@ const (
 )
 
 var (
-	patterns = []string{PatternUniform, PatternRandom}
-	methods  = []string{MethodZeroFilled, MethodFISTAWavelet}
-	metrics  = []string{MetricSSIM, MetricPSNR, MetricNRMSE}
-	phantoms = []string{"modified-shepp-logan"}
-	wavelets = []string{"haar", "db2", "db3", "db4", "db5", "db6", "db7", "db8"}
+	patterns    = []string{PatternUniform, PatternRandom, PatternRadial, PatternSpiral}
+	spokeOrders = []string{"golden", "tiny-golden", "uniform", "rational-golden"}
+	methods     = []string{MethodZeroFilled, MethodFISTAWavelet}
+	metrics     = []string{MetricSSIM, MetricPSNR, MetricNRMSE}
+	phantoms    = []string{"modified-shepp-logan"}
+	wavelets    = []string{"haar", "db2", "db3", "db4", "db5", "db6", "db7", "db8"}
 )
 
 // Error is a mistake in a plan file. It names the file, the line (0 when the
@@ -421,6 +447,20 @@ func (v *validator) scheme(p *Plan, i int) {
 			v.fail("scheme", i, "label", fmt.Sprintf("label %q is used by scheme %d too", s.Label, j+1), "give each scheme its own label")
 		}
 	}
+	if s.NonCartesian() {
+		v.nonCartesian(p, i)
+		return
+	}
+	for _, k := range []struct {
+		set  bool
+		name string
+	}{{s.SpokeOrder != "", "spoke_order"}, {s.TinyGoldenN != 0, "tiny_golden_n"}, {s.HalfSpokes, "half_spokes"},
+		{s.ReadoutOversampling != 0, "readout_oversampling"}, {s.Interleaves != nil, "interleaves"},
+		{s.EdgeUndersampling != 0, "edge_undersampling"}, {s.DenseFraction != 0, "dense_fraction"}} {
+		if k.set {
+			v.fail("scheme", i, k.name, "does not apply to pattern "+s.Pattern, "remove it")
+		}
+	}
 	ny := p.Object.PhaseLines
 	if s.CalibrationLines < 0 || s.CalibrationLines > ny {
 		v.fail("scheme", i, "calibration_lines", fmt.Sprintf("must be between 0 and the %d phase-encode lines, got %d", ny, s.CalibrationLines), "")
@@ -451,12 +491,115 @@ func (v *validator) scheme(p *Plan, i int) {
 				"lower R or calibration_lines")
 		}
 	}
-	if !sort.Float64sAreSorted(s.Accelerations) {
-		sort.Float64s(s.Accelerations)
+	sortUnique(v, s, i)
+}
+
+// nonCartesian checks a radial or spiral scheme.
+func (v *validator) nonCartesian(p *Plan, i int) {
+	s := &p.Schemes[i]
+	o := p.Object
+	if o.PhaseLines != o.ReadoutPoints {
+		v.fail("object", -1, "phase_lines", fmt.Sprintf("pattern %s needs a square matrix, got %d × %d", s.Pattern, o.PhaseLines, o.ReadoutPoints),
+			"set phase_lines equal to readout_points")
 	}
+	for _, k := range []struct {
+		set  bool
+		name string
+	}{{s.CalibrationLines != 0, "calibration_lines"}, {s.DensityPower != 0, "density_power"}} {
+		if k.set {
+			v.fail("scheme", i, k.name, "does not apply to pattern "+s.Pattern, "remove it")
+		}
+	}
+	if s.ReadoutOversampling == 0 {
+		s.ReadoutOversampling = 2
+	}
+	if !(s.ReadoutOversampling >= 1) || s.ReadoutOversampling > 8 {
+		v.fail("scheme", i, "readout_oversampling", fmt.Sprintf("must be between 1 and 8, got %v", s.ReadoutOversampling), "2 is usual")
+	}
+	if s.Pattern == PatternRadial {
+		if s.Interleaves != nil || s.EdgeUndersampling != 0 || s.DenseFraction != 0 {
+			v.fail("scheme", i, "interleaves", "spiral keys do not apply to pattern radial", "remove interleaves, edge_undersampling and dense_fraction")
+		}
+		if s.SpokeOrder == "" {
+			s.SpokeOrder = "golden"
+		}
+		if !oneOf(s.SpokeOrder, spokeOrders) {
+			v.fail("scheme", i, "spoke_order", fmt.Sprintf("unknown spoke order %q", s.SpokeOrder), "choose one of: "+strings.Join(spokeOrders, ", "))
+		}
+		if s.SpokeOrder == "tiny-golden" && s.TinyGoldenN == 0 {
+			s.TinyGoldenN = 2
+		}
+		if s.TinyGoldenN < 0 || s.TinyGoldenN > 20 || (s.TinyGoldenN != 0 && s.SpokeOrder == "uniform") {
+			v.fail("scheme", i, "tiny_golden_n", fmt.Sprintf("must be between 1 and 20 with a golden spoke order, got %d", s.TinyGoldenN), "ψ_N = 180°/(φ+N−1); 1 is the golden angle")
+		}
+		ref := trajectoriesRadialReference(o.ReadoutPoints, s.HalfSpokes)
+		if len(s.Accelerations) == 0 {
+			v.fail("scheme", i, "accelerations", "missing or empty", fmt.Sprintf("list R relative to the %d spokes of Nyquist sampling (π/2·N)", ref))
+		}
+		for _, r := range s.Accelerations {
+			if !finite(r) || r < 1 || r > float64(ref) {
+				v.fail("scheme", i, "accelerations", fmt.Sprintf("R = %v must lie between 1 and %d (the Nyquist spoke count π/2·N)", r, ref), "")
+			}
+		}
+		sortUnique(v, s, i)
+		return
+	}
+	// spiral
+	if s.SpokeOrder != "" || s.TinyGoldenN != 0 || s.HalfSpokes {
+		v.fail("scheme", i, "spoke_order", "radial keys do not apply to pattern spiral", "remove spoke_order, tiny_golden_n and half_spokes")
+	}
+	if s.Accelerations != nil {
+		v.fail("scheme", i, "accelerations", "a spiral is set by its interleave counts", "list interleaves = [...] instead; the achieved R is reported")
+	}
+	if len(s.Interleaves) == 0 {
+		v.fail("scheme", i, "interleaves", "missing or empty", "list the interleave counts to try, e.g. [24, 16, 12, 8]")
+	}
+	for _, n := range s.Interleaves {
+		if n < 1 || n > 1024 {
+			v.fail("scheme", i, "interleaves", fmt.Sprintf("%d must be between 1 and 1024", n), "")
+		}
+		s.Accelerations = append(s.Accelerations, float64(n))
+	}
+	if s.EdgeUndersampling == 0 {
+		s.EdgeUndersampling = 1
+	}
+	if !(s.EdgeUndersampling >= 1) || s.EdgeUndersampling > 16 {
+		v.fail("scheme", i, "edge_undersampling", fmt.Sprintf("must be between 1 and 16, got %v", s.EdgeUndersampling), "1 is a Nyquist spiral")
+	}
+	if !(s.DenseFraction >= 0) || s.DenseFraction > 1 {
+		v.fail("scheme", i, "dense_fraction", fmt.Sprintf("must be between 0 and 1, got %v", s.DenseFraction), "")
+	}
+	sc := &p.Scanner
+	if sc.MaxGradient == 0 {
+		sc.MaxGradient = 40
+	}
+	if sc.MaxSlew == 0 {
+		sc.MaxSlew = 150
+	}
+	if sc.DwellUs == 0 {
+		sc.DwellUs = 4
+	}
+	if !(sc.MaxGradient > 0) || sc.MaxGradient > 500 {
+		v.fail("scanner", -1, "max_gradient_mt_per_m", fmt.Sprintf("must be between 0 and 500 mT/m, got %v", sc.MaxGradient), "")
+	}
+	if !(sc.MaxSlew > 0) || sc.MaxSlew > 1000 {
+		v.fail("scanner", -1, "max_slew_t_per_m_per_s", fmt.Sprintf("must be between 0 and 1000 T/m/s, got %v", sc.MaxSlew), "")
+	}
+	if !(sc.DwellUs > 0) || sc.DwellUs > 100 {
+		v.fail("scanner", -1, "dwell_us", fmt.Sprintf("must be between 0 and 100 µs, got %v", sc.DwellUs), "")
+	}
+	if !(sc.MaxReadoutMs >= 0) || sc.MaxReadoutMs > 1000 {
+		v.fail("scanner", -1, "max_readout_ms", fmt.Sprintf("must be between 0 (no limit) and 1000 ms, got %v", sc.MaxReadoutMs), "")
+	}
+	sortUnique(v, s, i)
+}
+
+// sortUnique sorts the accelerations of scheme i and refuses repeats.
+func sortUnique(v *validator, s *Scheme, i int) {
+	sort.Float64s(s.Accelerations)
 	for j := 1; j < len(s.Accelerations); j++ {
 		if s.Accelerations[j] == s.Accelerations[j-1] {
-			v.fail("scheme", i, "accelerations", fmt.Sprintf("R = %v is listed twice", s.Accelerations[j]), "list each R once")
+			v.fail("scheme", i, "accelerations", fmt.Sprintf("%v is listed twice", s.Accelerations[j]), "list each value once")
 		}
 	}
 }

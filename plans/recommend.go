@@ -1,6 +1,7 @@
 package plans
 
 import (
+	"fmt"
 	"math"
 )
 
@@ -13,7 +14,9 @@ type Row struct {
 	Method     string
 	AskedR     float64
 	R          float64 // achieved
-	Shots      int
+	Shots      int     // acquired shots
+	FullShots  int     // shots of the fully sampled reference of the family
+	ShotKind   string  // "lines", "spokes" or "interleaves"
 	ScanTime   float64 // seconds
 	NRMSE      Summary
 	PSNR       Summary
@@ -60,7 +63,8 @@ type Analysis struct {
 	Rows          []Row
 	Curves        []Curve
 	Best          int     // the overall recommendation (index into Rows), or -1
-	ReferenceTime float64 // scan time of the fully sampled protocol, seconds
+	ReferenceTime  float64 // scan time of the fully sampled protocol, seconds
+	ReferenceLabel string  // what the reference protocol is
 }
 
 // Analyse summarises the results of o and picks, per curve and overall, the
@@ -68,8 +72,16 @@ type Analysis struct {
 // threshold. Ties in scan time go to the better mean.
 func Analyse(o *Outcome) *Analysis {
 	p := o.Plan
-	a := &Analysis{Metric: p.Accept.Metric, Threshold: p.Accept.Threshold, Best: -1,
-		ReferenceTime: Cartesian2DTime(p.Scanner.TRms, p.Object.PhaseLines, p.Scanner.EchoTrain, p.Scanner.Averages)}
+	a := &Analysis{Metric: p.Accept.Metric, Threshold: p.Accept.Threshold, Best: -1}
+	// The reference protocol is the fully sampled scan of the first
+	// scheme's family: all phase-encode lines, or π/2·N spokes, or the
+	// Nyquist interleaves of the spiral.
+	if len(o.Candidates) > 0 {
+		c := o.Candidates[0]
+		s := p.Schemes[c.Scheme]
+		a.ReferenceTime = ScanTime(p, s, c.Sampling.FullShots)
+		a.ReferenceLabel = fmt.Sprintf("%s, fully sampled (%d %s)", s.Pattern, c.Sampling.FullShots, ShotName(s))
+	}
 	nr := len(p.Recons)
 	for ci, c := range o.Candidates {
 		for ri := range p.Recons {
@@ -82,7 +94,8 @@ func Analyse(o *Outcome) *Analysis {
 				ss = append(ss, r.SSIM)
 			}
 			row := Row{Candidate: ci, Recon: ri, Scheme: p.Schemes[c.Scheme].Label, Method: p.Recons[ri].Label,
-				AskedR: c.AskedR, R: c.Sampling.R, Shots: c.Sampling.Shots, ScanTime: c.ScanTime,
+				AskedR: c.AskedR, R: c.Sampling.R, Shots: c.Sampling.Shots, FullShots: c.Sampling.FullShots,
+				ShotKind: ShotName(p.Schemes[c.Scheme]), ScanTime: c.ScanTime,
 				NRMSE: Summarize(n), PSNR: Summarize(ps), SSIM: Summarize(ss),
 				Lambda: res[0].Lambda, LambdaRule: res[0].LambdaRule}
 			row.Meets = meets(row.Bound(a.Metric), a.Threshold, a.Metric)

@@ -4,7 +4,6 @@ import (
 	"fmt"
 
 	"accelplan/priors"
-	"accelplan/simulate"
 )
 
 // solver holds one worker's reconstruction state for one plan method: the
@@ -12,6 +11,7 @@ import (
 type solver struct {
 	rc    Recon
 	zf    []complex128
+	wy    []complex128 // density-weighted data, grown as needed
 	prior priors.Prior
 }
 
@@ -37,21 +37,36 @@ func (w *workerState) solverFor(ri int) (*solver, error) {
 }
 
 // reconstruct runs method ri on data y; lambda is relative to the largest
-// zero-filled magnitude (priors.RelativeLambda). It returns the image, valid
-// until the next call, and the iterations used.
-func (w *workerState) reconstruct(ri int, op simulate.Operator, y []complex128, lambda float64) ([]complex128, int, error) {
+// magnitude of the adjoint image (priors.RelativeLambda). It returns the image,
+// valid until the next call, and the iterations used.
+//
+// The adjoint image is the zero-filled inverse FFT for a Cartesian mask, and
+// the density-compensated gridding reconstruction EᴴWy for a non-Cartesian
+// trajectory, with W the k-space area of each sample in (cycles/FOV)², so that
+// Σ w F(k) e^{2πik·x} approximates the inverse Fourier integral.
+func (w *workerState) reconstruct(ri int, enc *encoding, y []complex128, lambda float64) ([]complex128, int, error) {
 	s, err := w.solverFor(ri)
 	if err != nil {
 		return nil, 0, err
 	}
-	op.Adjoint(s.zf, y)
+	if enc.weights == nil {
+		enc.op.Adjoint(s.zf, y)
+	} else {
+		if cap(s.wy) < len(y) {
+			s.wy = make([]complex128, len(y))
+		}
+		wy := s.wy[:len(y)]
+		for i, v := range y {
+			wy[i] = v * complex(enc.weights[i], 0)
+		}
+		enc.op.Adjoint(s.zf, wy)
+	}
 	switch s.rc.Method {
 	case MethodZeroFilled:
 		return s.zf, 0, nil
 	case MethodFISTAWavelet:
-		// The masked orthonormal FFT has ‖E‖ = 1, so the step is 1.
-		x, info, err := priors.FISTA(op, y, s.prior, priors.RelativeLambda(lambda, s.zf),
-			priors.FISTAOptions{MaxIter: s.rc.Iterations, Step: 1, X0: s.zf})
+		x, info, err := priors.FISTA(enc.op, y, s.prior, priors.RelativeLambda(lambda, s.zf),
+			priors.FISTAOptions{MaxIter: s.rc.Iterations, Step: enc.step, X0: s.zf})
 		if err != nil {
 			return nil, 0, fmt.Errorf("recon %q: %w", s.rc.Label, err)
 		}

@@ -12,6 +12,7 @@ import (
 
 	"accelplan/priors"
 	"accelplan/simulate"
+	"accelplan/simulate/nufft"
 	"accelplan/simulate/quality"
 	"accelplan/trajectories"
 )
@@ -25,8 +26,13 @@ type Candidate struct {
 	Sampling trajectories.Sampling
 	ScanTime float64 // seconds
 	MaskSeed uint64
+	// PSF is the point-spread function on the image grid, peak 1 at the
+	// centre pixel: the inverse FFT of a Cartesian mask, or the
+	// density-compensated NUFFT adjoint EᴴW1 of a non-Cartesian trajectory.
+	PSF []complex128
 	// SideLobe is the PSF side-lobe-to-peak ratio of the sampling (Lustig,
 	// Donoho, Pauly 2007): 1 for regular undersampling without calibration.
+	// For non-Cartesian samplings the main lobe (radius 2 pixels) is left out.
 	SideLobe float64
 }
 
@@ -125,25 +131,104 @@ func Candidates(p *Plan) ([]Candidate, error) {
 				if err == nil {
 					c.Sampling, err = trajectories.CartesianRandom(ny, nx, lines, s.CalibrationLines, s.DensityPower, c.MaskSeed)
 				}
+			case PatternRadial:
+				c.Sampling, err = radialSampling(p, s, r)
+			case PatternSpiral:
+				c.Sampling, err = spiralSampling(p, s, int(r))
 			default:
 				err = fmt.Errorf("pattern %q has no sampling yet", s.Pattern)
 			}
 			if err != nil {
-				return nil, &Error{File: p.Source, Line: findKeyIn(string(p.Text), "scheme", si, "accelerations"),
-					Key: fmt.Sprintf("scheme[%d].accelerations", si+1), Msg: fmt.Sprintf("R = %g: %v", r, err)}
+				key, what := "accelerations", fmt.Sprintf("R = %g", r)
+				if s.Pattern == PatternSpiral {
+					key, what = "interleaves", fmt.Sprintf("%d interleaves", int(r))
+				}
+				return nil, &Error{File: p.Source, Line: findKeyIn(string(p.Text), "scheme", si, key),
+					Key: fmt.Sprintf("scheme[%d].%s", si+1, key), Msg: fmt.Sprintf("%s: %v", what, err)}
 			}
-			psf, err := c.Sampling.PSF()
-			if err == nil {
-				c.SideLobe, err = trajectories.SideLobeToPeak(psf, ny, nx)
-			}
-			if err != nil {
+			if err := c.psf(ny, nx); err != nil {
 				return nil, fmt.Errorf("scheme %q, R = %g: PSF: %w", s.Label, r, err)
 			}
-			c.ScanTime = Cartesian2DTime(p.Scanner.TRms, c.Sampling.Shots, p.Scanner.EchoTrain, p.Scanner.Averages)
+			c.ScanTime = ScanTime(p, s, c.Sampling.Shots)
 			out = append(out, c)
 		}
 	}
 	return out, nil
+}
+
+// psf fills c.PSF and c.SideLobe.
+func (c *Candidate) psf(ny, nx int) error {
+	s := c.Sampling
+	var err error
+	if s.Mask != nil {
+		if c.PSF, err = s.PSF(); err != nil {
+			return err
+		}
+		c.SideLobe, err = trajectories.SideLobeToPeak(c.PSF, ny, nx)
+		return err
+	}
+	kx := make([]float64, len(s.K))
+	ky := make([]float64, len(s.K))
+	for j, k := range s.K {
+		kx[j], ky[j] = k[0], k[1]
+	}
+	op, err := nufft.New(ny, nx, kx, ky, nufft.Options{})
+	if err != nil {
+		return err
+	}
+	// Unit data of a point at the centre pixel are 1/√(nx·ny) at every k;
+	// the gridded adjoint then peaks at Σw/(nx·ny).
+	w := make([]complex128, len(s.Weights))
+	for j, v := range s.Weights {
+		w[j] = complex(v/math.Sqrt(float64(nx*ny)), 0)
+	}
+	c.PSF = make([]complex128, ny*nx)
+	op.Adjoint(c.PSF, w)
+	peak := c.PSF[ny/2*nx+nx/2]
+	if peak == 0 {
+		return fmt.Errorf("the PSF has no peak at the centre")
+	}
+	for i := range c.PSF {
+		c.PSF[i] /= peak
+	}
+	c.SideLobe, err = trajectories.SideLobeToPeakOutside(c.PSF, ny, nx, 2)
+	return err
+}
+
+// radialSampling builds the spokes for acceleration r relative to the π/2·N
+// spokes of Nyquist sampling.
+func radialSampling(p *Plan, s Scheme, r float64) (trajectories.Sampling, error) {
+	n := p.Object.ReadoutPoints
+	ref := trajectories.RadialReferenceSpokes(n, s.HalfSpokes)
+	spokes := max(1, int(math.Round(float64(ref)/r)))
+	spec := trajectories.RadialSpec{N: n, Spokes: spokes, Half: s.HalfSpokes, Oversampling: s.ReadoutOversampling}
+	switch s.SpokeOrder {
+	case "uniform":
+		spec.Order = "uniform"
+	case "golden":
+		spec.Order, spec.TinyN = "golden", 1
+	case "tiny-golden":
+		spec.Order, spec.TinyN = "golden", s.TinyGoldenN
+	case "rational-golden":
+		spec.Order, spec.TinyN = "rational", max(1, s.TinyGoldenN)
+	}
+	return trajectories.Radial(spec)
+}
+
+// spiralSampling designs n interleaves under the plan's gradient limits.
+func spiralSampling(p *Plan, s Scheme, n int) (trajectories.Sampling, error) {
+	sc := p.Scanner
+	spec := trajectories.SpiralSpec{N: p.Object.ReadoutPoints, FOV: p.Object.FOVmm / 1000, Interleaves: n,
+		GMax: sc.MaxGradient / 1000, SMax: sc.MaxSlew, Dt: sc.DwellUs * 1e-6,
+		EdgeUndersampling: s.EdgeUndersampling, DenseFraction: s.DenseFraction, MaxReadout: sc.MaxReadoutMs / 1000}
+	smp, d, err := trajectories.Spiral(spec)
+	if err != nil {
+		return smp, err
+	}
+	if ms := d.Readout * 1000; ms >= sc.TRms {
+		return smp, fmt.Errorf("the readout takes %.2f ms, which does not fit in tr_ms = %g; raise tr_ms, add interleaves or raise edge_undersampling", ms, sc.TRms)
+	}
+	return smp, nil
 }
 
 // job is one unit of work on the pool: a λ tuning (repeat < 0) or a scored
@@ -209,7 +294,7 @@ func Run(ctx context.Context, p *Plan, opt Options) (*Outcome, error) {
 		workers = runtime.GOMAXPROCS(0)
 	}
 	o.Workers = workers
-	env := &runEnv{plan: p, out: o, spectrum: spectrum, ny: ny, nx: nx}
+	env := &runEnv{plan: p, out: o, phantom: ph, spectrum: spectrum, clean: newCleanData(len(cands)), ny: ny, nx: nx}
 	for _, stage := range [][]job{tune, score} {
 		if err := pool(ctx, workers, stage, env, tick); err != nil {
 			return nil, err
@@ -275,7 +360,9 @@ feed:
 type runEnv struct {
 	plan     *Plan
 	out      *Outcome
-	spectrum []complex128
+	phantom  simulate.Phantom
+	spectrum []complex128 // the phantom's spectrum on the centred Cartesian grid
+	clean    *cleanData
 	ny, nx   int
 }
 
@@ -283,8 +370,7 @@ type runEnv struct {
 // candidate and reused across its jobs.
 type workerState struct {
 	env     *runEnv
-	ops     map[int]*simulate.Cartesian
-	clean   map[int][]complex128 // noiseless data per candidate
+	encs    map[int]*encoding
 	mag     []float64
 	ssim    *quality.SSIMPlan
 	solvers map[int]*solver // per recon index
@@ -296,37 +382,22 @@ func newWorkerState(env *runEnv) (*workerState, error) {
 	if err != nil {
 		return nil, err
 	}
-	return &workerState{env: env, ops: map[int]*simulate.Cartesian{}, clean: map[int][]complex128{},
+	return &workerState{env: env, encs: map[int]*encoding{},
 		mag: make([]float64, env.ny*env.nx), ssim: ssim, solvers: map[int]*solver{}}, nil
 }
 
-func (w *workerState) operator(ci int) (*simulate.Cartesian, []complex128, error) {
-	if op, ok := w.ops[ci]; ok {
-		return op, w.clean[ci], nil
-	}
-	s := w.env.out.Candidates[ci].Sampling
-	op, err := simulate.NewCartesian(w.env.ny, w.env.nx, s.Mask)
-	if err != nil {
-		return nil, nil, err
-	}
-	clean := make([]complex128, op.DataLen())
-	op.Gather(clean, w.env.spectrum)
-	w.ops[ci], w.clean[ci] = op, clean
-	return op, clean, nil
-}
-
-// draw returns noisy data for the candidate and the given draw key.
-func (w *workerState) draw(ci int, key string) (*simulate.Cartesian, []complex128, uint64, error) {
-	op, clean, err := w.operator(ci)
+// draw returns the candidate's encoding and noisy data for the given draw key.
+func (w *workerState) draw(ci int, key string) (*encoding, []complex128, uint64, error) {
+	e, err := w.encodingFor(ci)
 	if err != nil {
 		return nil, nil, 0, err
 	}
 	seed := seedFor(w.env.plan.Seed, "noise|"+w.env.out.Candidates[ci].Key()+"|"+key)
 	rng := rand.New(rand.NewPCG(seed, seed^0x5851f42d4c957f2d))
-	y := make([]complex128, len(clean))
-	copy(y, clean)
+	y := make([]complex128, len(e.clean))
+	copy(y, e.clean)
 	simulate.AddNoise(y, w.env.out.Sigma, rng)
-	return op, y, seed, nil
+	return e, y, seed, nil
 }
 
 func (w *workerState) do(j job) error {
@@ -337,7 +408,7 @@ func (w *workerState) do(j job) error {
 	}
 	// The same noise draw serves every method of a candidate, so methods are
 	// compared on paired data.
-	op, y, seed, err := w.draw(j.cand, fmt.Sprintf("scored-%d", j.repeat))
+	enc, y, seed, err := w.draw(j.cand, fmt.Sprintf("scored-%d", j.repeat))
 	if err != nil {
 		return err
 	}
@@ -350,7 +421,7 @@ func (w *workerState) do(j job) error {
 		lambda, rule = 0, "none"
 	}
 	t0 := time.Now()
-	img, iters, err := w.reconstruct(j.recon, op, y, lambda)
+	img, iters, err := w.reconstruct(j.recon, enc, y, lambda)
 	if err != nil {
 		return err
 	}
@@ -390,7 +461,7 @@ const tuneEvals = 12
 // plan's acceptance metric.
 func (w *workerState) tune(j job, rc Recon) error {
 	p := w.env.plan
-	op, y, seed, err := w.draw(j.cand, "calibration")
+	enc, y, seed, err := w.draw(j.cand, "calibration")
 	if err != nil {
 		return err
 	}
@@ -403,7 +474,7 @@ func (w *workerState) tune(j job, rc Recon) error {
 	evals := 0
 	cost := func(lambda float64) float64 {
 		evals++
-		img, _, err := w.reconstruct(j.recon, op, y, lambda)
+		img, _, err := w.reconstruct(j.recon, enc, y, lambda)
 		if err != nil {
 			if firstErr == nil {
 				firstErr = err

@@ -16,3 +16,30 @@ func Cartesian2DTime(trMs float64, lines, echoTrain, averages int) float64 {
 	shots := math.Ceil(float64(lines) / float64(echoTrain))
 	return trMs / 1000 * shots * float64(averages)
 }
+
+// ShotTime returns the scan time in seconds of an acquisition that plays one
+// shot (a radial spoke or a spiral interleave) per TR: TR × shots × averages
+// (Bernstein et al. 2004).
+func ShotTime(trMs float64, shots, averages int) float64 {
+	return trMs / 1000 * float64(shots) * float64(averages)
+}
+
+// ScanTime returns the scan time of shots of scheme s under p's scanner:
+// Cartesian2DTime for line sampling, ShotTime for radial and spiral.
+func ScanTime(p *Plan, s Scheme, shots int) float64 {
+	if s.NonCartesian() {
+		return ShotTime(p.Scanner.TRms, shots, p.Scanner.Averages)
+	}
+	return Cartesian2DTime(p.Scanner.TRms, shots, p.Scanner.EchoTrain, p.Scanner.Averages)
+}
+
+// ShotName names what a shot of scheme s is, for tables.
+func ShotName(s Scheme) string {
+	switch s.Pattern {
+	case PatternRadial:
+		return "spokes"
+	case PatternSpiral:
+		return "interleaves"
+	}
+	return "lines"
+}

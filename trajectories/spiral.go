@@ -345,7 +345,14 @@ func Spiral(sp SpiralSpec) (Sampling, SpiralDesign, error) {
 		return Sampling{}, SpiralDesign{}, err
 	}
 	n := sp.Interleaves
+	// The design runs to the first sample at or beyond kmax, so that its
+	// gradient waveform reaches the edge; a sample past the edge is kept in
+	// the waveform but not acquired, since it lies outside the band the
+	// N×N image can represent.
 	ns := len(d.K)
+	if last := d.K[ns-1]; ns > 1 && math.Hypot(last[0], last[1]) > float64(sp.N)/2 {
+		ns--
+	}
 	s := Sampling{
 		Scheme:    SchemeSpiral,
 		Family:    FamilySpiral,
@@ -384,7 +391,7 @@ func Spiral(sp SpiralSpec) (Sampling, SpiralDesign, error) {
 		rot := 360 * float64(i) / float64(n)
 		s.Angles[i] = rot
 		sn, c := math.Sincos(rot * math.Pi / 180)
-		for j, k := range d.K {
+		for j, k := range d.K[:ns] {
 			s.K = append(s.K, [2]float64{c*k[0] - sn*k[1], sn*k[0] + c*k[1]})
 			s.Weights = append(s.Weights, w[j])
 		}

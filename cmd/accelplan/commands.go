@@ -128,9 +128,9 @@ func cmdCheck(args []string, stdout io.Writer) error {
 	}
 	fmt.Fprintf(stdout, "%s: valid plan %q\n", args[0], p.Title)
 	tw := tabwriter.NewWriter(stdout, 2, 4, 2, ' ', 0)
-	fmt.Fprintln(tw, "scheme\tasked R\tachieved R\tlines\tscan time")
+	fmt.Fprintln(tw, "scheme\tasked R\tachieved R\tshots\tscan time")
 	for _, c := range cands {
-		fmt.Fprintf(tw, "%s\t%g\t%.2f\t%d\t%s\n", p.Schemes[c.Scheme].Label, c.AskedR, c.Sampling.R, c.Sampling.Shots, out.FormatMinSec(c.ScanTime))
+		fmt.Fprintf(tw, "%s\t%g\t%.2f\t%d %s\t%s\n", p.Schemes[c.Scheme].Label, c.AskedR, c.Sampling.R, c.Sampling.Shots, plans.ShotName(p.Schemes[c.Scheme]), duration(c.ScanTime))
 	}
 	tw.Flush()
 	tunes := 0
@@ -152,8 +152,8 @@ func printRecommendation(w io.Writer, o *plans.Outcome, a *plans.Analysis, dir s
 		cmp = "≤"
 	}
 	fmt.Fprintf(w, "\n%s\n", p.Title)
-	fmt.Fprintf(w, "bar: %s %s %g (one-sided 95%% confidence bound over %d noise draws); fully sampled scan %s\n\n",
-		metric, cmp, a.Threshold, p.Repeats, out.FormatMinSec(a.ReferenceTime))
+	fmt.Fprintf(w, "bar: %s %s %g (one-sided 95%% confidence bound over %d noise draws); reference: %s, %s\n\n",
+		metric, cmp, a.Threshold, p.Repeats, a.ReferenceLabel, duration(a.ReferenceTime))
 	tw := tabwriter.NewWriter(w, 2, 4, 2, ' ', 0)
 	fmt.Fprintf(tw, "scheme\tmethod\tshortest passing protocol\tscan time\t%s mean ± sd\tbound\n", metric)
 	for _, cv := range a.Curves {
@@ -164,7 +164,7 @@ func printRecommendation(w io.Writer, o *plans.Outcome, a *plans.Analysis, dir s
 		}
 		r := a.Rows[cv.Pick]
 		ms := r.Metric(a.Metric)
-		fmt.Fprintf(tw, "%s\t%s\tR = %.2f (%d lines)\t%s\t%.4g ± %.2g\t%.4g\n", s, m, r.R, r.Shots, out.FormatMinSec(r.ScanTime), ms.Mean, ms.Std, r.Bound(a.Metric))
+		fmt.Fprintf(tw, "%s\t%s\tR = %.2f (%d %s)\t%s\t%.4g ± %.2g\t%.4g\n", s, m, r.R, r.Shots, r.ShotKind, duration(r.ScanTime), ms.Mean, ms.Std, r.Bound(a.Metric))
 	}
 	tw.Flush()
 	fmt.Fprintln(w)
@@ -173,11 +173,20 @@ func printRecommendation(w io.Writer, o *plans.Outcome, a *plans.Analysis, dir s
 	} else {
 		r := a.Rows[a.Best]
 		saved := a.ReferenceTime - r.ScanTime
-		fmt.Fprintf(w, "Recommended: %s, R = %.2f (%d of %d lines), reconstructed with %s.\n", r.Scheme, r.R, r.Shots, p.Object.PhaseLines, r.Method)
-		fmt.Fprintf(w, "It takes %s, %s less than the fully sampled %s (%.0f%% saved); %s = %.4g, 95%% bound %.4g.\n",
-			out.FormatMinSec(r.ScanTime), out.FormatMinSec(saved), out.FormatMinSec(a.ReferenceTime), 100*saved/a.ReferenceTime,
+		fmt.Fprintf(w, "Recommended: %s, R = %.2f (%d of %d %s), reconstructed with %s.\n", r.Scheme, r.R, r.Shots, r.FullShots, r.ShotKind, r.Method)
+		fmt.Fprintf(w, "It takes %s, %s less than the reference %s (%.0f%% saved); %s = %.4g, 95%% bound %.4g.\n",
+			duration(r.ScanTime), duration(saved), duration(a.ReferenceTime), 100*saved/a.ReferenceTime,
 			metric, r.Metric(a.Metric).Mean, r.Bound(a.Metric))
 		fmt.Fprintf(w, "λ: %s.\n", r.LambdaRule)
 	}
 	fmt.Fprintf(w, "Curve, images and tables: %s (computed in %.1f s)\n", dir, o.Elapsed.Seconds())
+}
+
+// duration formats a scan time: m:ss from a minute up, seconds with one
+// decimal below.
+func duration(s float64) string {
+	if s < 59.95 {
+		return fmt.Sprintf("%.1f s", s)
+	}
+	return out.FormatMinSec(s)
 }

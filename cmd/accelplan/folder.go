@@ -120,15 +120,15 @@ func writeFolder(dir string, o *plans.Outcome, a *plans.Analysis, version, cauti
 	}
 	for ci, c := range o.Candidates {
 		maskName := fmt.Sprintf("mask_%s_R%s.png", slug(p.Schemes[c.Scheme].Label), ff(c.AskedR))
-		if err := out.WriteMaskPNG(filepath.Join(img, maskName), c.Sampling.Mask, ny, nx); err != nil {
-			return err
-		}
-		psf, err := c.Sampling.PSF()
+		pic, rows, cols, err := c.Sampling.Picture()
 		if err != nil {
 			return err
 		}
+		if err := out.WriteGrayPNG(filepath.Join(img, maskName), pic, rows, cols, 0, 1); err != nil {
+			return err
+		}
 		psfName := fmt.Sprintf("psf_%s_R%s.png", slug(p.Schemes[c.Scheme].Label), ff(c.AskedR))
-		if err := out.WriteGrayPNG(filepath.Join(img, psfName), psfDecibels(psf), ny, nx, -40, 0); err != nil {
+		if err := out.WriteGrayPNG(filepath.Join(img, psfName), psfDecibels(c.PSF), ny, nx, -40, 0); err != nil {
 			return err
 		}
 		for ri := range p.Recons {

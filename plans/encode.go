@@ -1,0 +1,89 @@
+package plans
+
+import (
+	"fmt"
+	"sync"
+
+	"accelplan/priors"
+	"accelplan/simulate"
+	"accelplan/simulate/nufft"
+)
+
+// encoding is what one worker needs to simulate and reconstruct one
+// candidate: its own operator (with scratch), the shared noiseless data, the
+// density-compensation weights of a non-Cartesian trajectory, and the
+// gradient step of first-order solvers.
+type encoding struct {
+	op      simulate.Operator
+	clean   []complex128 // shared read-only by every worker
+	weights []float64    // nil for Cartesian masks
+	step    float64      // 1/L with L ≥ ‖EᴴE‖
+}
+
+// cleanData holds the noiseless data of every candidate, each computed once
+// from the analytic phantom and then shared.
+type cleanData struct {
+	once []sync.Once
+	data [][]complex128
+	err  []error
+}
+
+func newCleanData(n int) *cleanData {
+	return &cleanData{once: make([]sync.Once, n), data: make([][]complex128, n), err: make([]error, n)}
+}
+
+// encodingFor returns the worker's encoding of candidate ci, building it on
+// first use.
+func (w *workerState) encodingFor(ci int) (*encoding, error) {
+	if e, ok := w.encs[ci]; ok {
+		return e, nil
+	}
+	env := w.env
+	s := env.out.Candidates[ci].Sampling
+	e := &encoding{}
+	if s.Mask != nil {
+		op, err := simulate.NewCartesian(env.ny, env.nx, s.Mask)
+		if err != nil {
+			return nil, err
+		}
+		e.op, e.step = op, 1 // a masked orthonormal FFT has ‖E‖ = 1
+		env.clean.once[ci].Do(func() {
+			d := make([]complex128, op.DataLen())
+			op.Gather(d, env.spectrum)
+			env.clean.data[ci] = d
+		})
+	} else {
+		kx := make([]float64, len(s.K))
+		ky := make([]float64, len(s.K))
+		for j, k := range s.K {
+			kx[j], ky[j] = k[0], k[1]
+		}
+		op, err := nufft.New(env.ny, env.nx, kx, ky, nufft.Options{})
+		if err != nil {
+			return nil, fmt.Errorf("candidate %s: %w", env.out.Candidates[ci].Key(), err)
+		}
+		e.op, e.weights = op, s.Weights
+		// The power iteration is seeded from the candidate, so every
+		// worker finds the same step.
+		l, err := priors.NormalNorm(op, 60, 1e-9, seedFor(env.plan.Seed, "norm|"+env.out.Candidates[ci].Key()))
+		if err != nil {
+			return nil, err
+		}
+		e.step = 1 / (1.01 * l)
+		env.clean.once[ci].Do(func() {
+			// The exact spectrum of the analytic phantom at every
+			// trajectory point: no gridding of the truth is involved.
+			d := make([]complex128, len(s.K))
+			for j, k := range s.K {
+				d[j] = simulate.CartesianSample(env.phantom, k[0], k[1], env.nx, env.ny)
+			}
+			env.clean.data[ci] = d
+		})
+	}
+	if err := env.clean.err[ci]; err != nil {
+		return nil, err
+	}
+	e.clean = env.clean.data[ci]
+	w.encs[ci] = e
+	return e, nil
+}
