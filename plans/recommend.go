@@ -58,11 +58,11 @@ type Curve struct {
 
 // Analysis is the statistics of a run and its recommendation.
 type Analysis struct {
-	Metric        string
-	Threshold     float64
-	Rows          []Row
-	Curves        []Curve
-	Best          int     // the overall recommendation (index into Rows), or -1
+	Metric         string
+	Threshold      float64
+	Rows           []Row
+	Curves         []Curve
+	Best           int     // the overall recommendation (index into Rows), or -1
 	ReferenceTime  float64 // scan time of the fully sampled protocol, seconds
 	ReferenceLabel string  // what the reference protocol is
 }
