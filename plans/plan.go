@@ -27,17 +27,47 @@ func trajectoriesRadialReference(n int, half bool) int {
 //go:embed builtin/*.toml
 var builtinFS embed.FS
 
-// BuiltinName is the name of the plan run when no plan file is given.
-const BuiltinName = "builtin/brain-t2-survey.toml"
+// DefaultBuiltin is the name of the plan run when no plan file is given.
+const DefaultBuiltin = "brain-t2-survey"
 
-// Builtin returns the text of the built-in plan. It is annotated and doubles
-// as the starter plan that users copy and edit.
+// BuiltinNames lists the built-in plans, the default first.
+func BuiltinNames() []string {
+	names := []string{DefaultBuiltin}
+	ents, _ := builtinFS.ReadDir("builtin")
+	for _, e := range ents {
+		if n := strings.TrimSuffix(e.Name(), ".toml"); n != DefaultBuiltin {
+			names = append(names, n)
+		}
+	}
+	return names
+}
+
+// Builtin returns the text of the default built-in plan. It is annotated and
+// doubles as the starter plan that users copy and edit.
 func Builtin() []byte {
-	b, err := builtinFS.ReadFile(BuiltinName)
+	b, err := BuiltinText(DefaultBuiltin)
 	if err != nil {
-		panic("plans: built-in plan missing from the binary: " + err.Error())
+		panic("plans: " + err.Error())
 	}
 	return b
+}
+
+// BuiltinText returns the text of the named built-in plan.
+func BuiltinText(name string) ([]byte, error) {
+	b, err := builtinFS.ReadFile("builtin/" + name + ".toml")
+	if err != nil {
+		return nil, fmt.Errorf("no built-in plan %q; choose one of: %s", name, strings.Join(BuiltinNames(), ", "))
+	}
+	return b, nil
+}
+
+// LoadBuiltinNamed returns the validated built-in plan of that name.
+func LoadBuiltinNamed(name string) (*Plan, error) {
+	b, err := BuiltinText(name)
+	if err != nil {
+		return nil, err
+	}
+	return Parse("built-in plan "+name, b)
 }
 
 // Plan is a validated plan file.

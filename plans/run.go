@@ -26,6 +26,7 @@ type Candidate struct {
 	Sampling trajectories.Sampling
 	ScanTime float64 // seconds
 	MaskSeed uint64
+	key      string
 	// PSF is the point-spread function on the image grid, peak 1 at the
 	// centre pixel: the inverse FFT of a Cartesian mask, or the
 	// density-compensated NUFFT adjoint EᴴW1 of a non-Cartesian trajectory.
@@ -36,8 +37,9 @@ type Candidate struct {
 	SideLobe float64
 }
 
-// Key names the candidate for seeds, file names and tables.
-func (c Candidate) Key() string { return fmt.Sprintf("s%d-R%g", c.Scheme+1, c.AskedR) }
+// Key identifies the candidate by content (see candidateKey); seeds derive
+// from it.
+func (c Candidate) Key() string { return c.key }
 
 // Result is the outcome of one reconstruction of one noise draw.
 type Result struct {
@@ -93,13 +95,27 @@ type Outcome struct {
 	Started time.Time
 	Elapsed time.Duration
 	Workers int // worker goroutines used; results do not depend on it
+	// Complete is false for a shard or when jobs were left to other
+	// shards; only a complete outcome is analysed and written.
+	Complete bool
+	// Computed and Restored count the jobs done now and taken from the
+	// journal.
+	Computed, Restored int
 }
 
 // Options tune a run without changing its results.
 type Options struct {
-	Workers  int                           // 0 means all cores
-	Progress func(done, total int)         // called after every finished job; may be nil
-	Log      func(format string, a ...any) // optional notes
+	Workers  int                   // 0 means all cores
+	Progress func(done, total int) // called after every finished job; may be nil
+	// Journal, when not nil, supplies the jobs finished earlier and records
+	// every job finished now.
+	Journal *Journal
+	// Shard and Shards split the sweep: with Shards > 1 only the jobs of
+	// shard Shard (0-based) are computed. Shards ≤ 1 means the whole sweep.
+	Shard, Shards int
+	// Merge computes nothing: every job must come from the journal, or Run
+	// fails with ErrIncomplete.
+	Merge bool
 }
 
 // seedFor derives a reproducible seed from the plan seed and a key.
@@ -119,8 +135,8 @@ func Candidates(p *Plan) ([]Candidate, error) {
 	var out []Candidate
 	for si, s := range p.Schemes {
 		for ai, r := range s.Accelerations {
-			c := Candidate{Scheme: si, Accel: ai, AskedR: r}
-			c.MaskSeed = seedFor(p.Seed, "mask|"+c.Key())
+			c := Candidate{Scheme: si, Accel: ai, AskedR: r, key: candidateKey(p, s, r)}
+			c.MaskSeed = seedFor(p.Seed, "mask|"+c.key)
 			var err error
 			switch s.Pattern {
 			case PatternUniform:
@@ -232,9 +248,10 @@ func spiralSampling(p *Plan, s Scheme, n int) (trajectories.Sampling, error) {
 }
 
 // job is one unit of work on the pool: a λ tuning (repeat < 0) or a scored
-// reconstruction.
+// reconstruction, with its content key.
 type job struct {
 	cand, recon, repeat int
+	key                 string
 }
 
 // Run simulates, reconstructs and scores every point of p.
@@ -266,16 +283,45 @@ func Run(ctx context.Context, p *Plan, opt Options) (*Outcome, error) {
 	}
 	o.Results = make([]Result, len(cands)*nr*p.Repeats)
 
+	shards := max(opt.Shards, 1)
+	if opt.Shard < 0 || opt.Shard >= shards {
+		return nil, fmt.Errorf("shard %d is outside 1..%d", opt.Shard+1, shards)
+	}
+	// Jobs in plan order. A (candidate, method) group, its λ search and
+	// all its draws, belongs to shard group % shards.
 	var tune, score []job
-	for ci := range cands {
-		for ri := range p.Recons {
-			if needsTuning(p.Recons[ri]) {
-				tune = append(tune, job{ci, ri, -1})
+	missing := 0
+	for ci, c := range cands {
+		for ri, rc := range p.Recons {
+			g := ci*nr + ri
+			mine := g%shards == opt.Shard
+			rk := reconKey(rc)
+			tkey := ""
+			if needsTuning(rc) {
+				tkey = contentKey("tune", c.key, rk, p.Accept.Metric, tuneEvals)
+				if e, ok := opt.Journal.lookup(tkey); ok && e.Tuning != nil {
+					o.Tunings[ci][ri] = *e.Tuning
+					o.Restored++
+				} else if mine && !opt.Merge {
+					tune = append(tune, job{ci, ri, -1, tkey})
+				} else {
+					missing++
+				}
 			}
 			for rep := 0; rep < p.Repeats; rep++ {
-				score = append(score, job{ci, ri, rep})
+				j := job{ci, ri, rep, contentKey("score", c.key, rk, tkey, rep)}
+				if restoreResult(o, opt.Journal, j, ny*nx) {
+					o.Restored++
+				} else if mine && !opt.Merge {
+					score = append(score, j)
+				} else {
+					missing++
+				}
 			}
 		}
+	}
+	if opt.Merge && missing > 0 {
+		return nil, fmt.Errorf("%w: %d of %d jobs are missing; run the shards that have not finished", ErrIncomplete, missing, o.Restored+missing)
 	}
 	total := len(tune) + len(score)
 	var mu sync.Mutex
@@ -294,12 +340,14 @@ func Run(ctx context.Context, p *Plan, opt Options) (*Outcome, error) {
 		workers = runtime.GOMAXPROCS(0)
 	}
 	o.Workers = workers
-	env := &runEnv{plan: p, out: o, phantom: ph, spectrum: spectrum, clean: newCleanData(len(cands)), ny: ny, nx: nx}
+	env := &runEnv{plan: p, out: o, phantom: ph, spectrum: spectrum, clean: newCleanData(len(cands)), ny: ny, nx: nx, journal: opt.Journal}
 	for _, stage := range [][]job{tune, score} {
 		if err := pool(ctx, workers, stage, env, tick); err != nil {
 			return nil, err
 		}
 	}
+	o.Computed = total
+	o.Complete = missing == 0
 	o.Elapsed = time.Since(start)
 	return o, nil
 }
@@ -364,6 +412,7 @@ type runEnv struct {
 	spectrum []complex128 // the phantom's spectrum on the centred Cartesian grid
 	clean    *cleanData
 	ny, nx   int
+	journal  *Journal
 }
 
 // workerState holds one worker's operators and buffers, built once per
@@ -434,10 +483,36 @@ func (w *workerState) do(j job) error {
 	}
 	idx := (j.cand*len(p.Recons)+j.recon)*p.Repeats + j.repeat
 	w.env.out.Results[idx] = r
+	var kept []float64
 	if j.repeat == 0 {
-		w.env.out.Images[j.cand][j.recon] = append([]float64(nil), w.mag...)
+		kept = append([]float64(nil), w.mag...)
+		w.env.out.Images[j.cand][j.recon] = kept
 	}
-	return nil
+	return w.env.journal.record(journalEntry{Key: j.key, Result: &r}, kept)
+}
+
+// restoreResult fills the slot of job j from the journal, with its image
+// for the first draw; it reports whether it could.
+func restoreResult(o *Outcome, jr *Journal, j job, n int) bool {
+	e, ok := jr.lookup(j.key)
+	if !ok || e.Result == nil {
+		return false
+	}
+	var img []float64
+	if j.repeat == 0 {
+		var err error
+		if img, err = jr.readImage(e, n); err != nil {
+			return false // recompute rather than trust a damaged entry
+		}
+	}
+	r := *e.Result
+	r.Candidate, r.Recon, r.Repeat = j.cand, j.recon, j.repeat
+	nr := len(o.Plan.Recons)
+	o.Results[(j.cand*nr+j.recon)*o.Plan.Repeats+j.repeat] = r
+	if img != nil {
+		o.Images[j.cand][j.recon] = img
+	}
+	return true
 }
 
 // score returns NRMSE, PSNR and SSIM of a magnitude image inside the support.
@@ -500,7 +575,8 @@ func (w *workerState) tune(j job, rc Recon) error {
 	for _, e := range trace {
 		bestCost = math.Min(bestCost, e.Score)
 	}
-	w.env.out.Tunings[j.cand][j.recon] = Tuning{Lambda: best, Rule: "tuned on a calibration noise draw (" + metric + ")",
+	t := Tuning{Lambda: best, Rule: "tuned on a calibration noise draw (" + metric + ")",
 		Score: sign * bestCost, NoiseSeed: seed, Evals: evals}
-	return nil
+	w.env.out.Tunings[j.cand][j.recon] = t
+	return w.env.journal.record(journalEntry{Key: j.key, Tuning: &t}, nil)
 }

@@ -1,12 +1,14 @@
 package main
 
 import (
+	"cmp"
 	"context"
 	"errors"
 	"fmt"
 	"io"
 	"os"
 	"runtime"
+	"strconv"
 	"strings"
 	"text/tabwriter"
 
@@ -15,30 +17,53 @@ import (
 )
 
 func cmdRun(ctx context.Context, args []string, stdout, stderr io.Writer) error {
-	fs := newFlags("run", stderr)
+	return runOrMerge(ctx, "run", args, stdout, stderr)
+}
+
+func cmdMerge(ctx context.Context, args []string, stdout, stderr io.Writer) error {
+	return runOrMerge(ctx, "merge", args, stdout, stderr)
+}
+
+// runOrMerge runs a plan (or a shard of it), or merges the journals of its
+// shards into the results folder.
+func runOrMerge(ctx context.Context, name string, args []string, stdout, stderr io.Writer) error {
+	fs := newFlags(name, stderr)
 	workers := fs.Int("workers", 0, "worker goroutines (0: one per core); results do not depend on it")
 	outDir := fs.String("out", "", "results folder (overrides the plan's output key)")
 	quiet := fs.Bool("quiet", false, "no progress display")
+	fresh := fs.Bool("fresh", false, "ignore and clear the journal of earlier runs of this results folder")
+	shard := fs.String("shard", "", "compute only shard I of N (\"I/N\", 1-based); taken from SLURM_ARRAY_TASK_ID or JOB_COMPLETION_INDEX when set")
+	shards := fs.Int("shards", 0, "number of shards when the index comes from the environment")
+	builtin := fs.String("builtin", "", "run a built-in plan by name: "+strings.Join(plans.BuiltinNames(), ", "))
 	fs.Usage = func() {
-		fmt.Fprintln(stderr, "usage: accelplan run [-workers N] [-out DIR] [-quiet] [PLAN.toml]")
+		if name == "merge" {
+			fmt.Fprintln(stderr, "usage: accelplan merge [-out DIR] [PLAN.toml]   (after every shard has run)")
+		} else {
+			fmt.Fprintln(stderr, "usage: accelplan run [-workers N] [-out DIR] [-quiet] [-fresh] [-shard I/N] [-builtin NAME | PLAN.toml]")
+		}
 		fs.PrintDefaults()
 	}
 	if err := fs.Parse(args); err != nil {
 		return errUsage
 	}
-	if fs.NArg() > 1 {
+	if fs.NArg() > 1 || (fs.NArg() == 1 && *builtin != "") {
 		fs.Usage()
 		return errUsage
 	}
 	var p *plans.Plan
-	if fs.NArg() == 0 {
-		p = plans.LoadBuiltin()
-		fmt.Fprintln(stderr, "accelplan: no plan given, running the built-in plan (write it out with `accelplan new plan.toml`)")
-	} else {
-		var err error
+	var err error
+	switch {
+	case fs.NArg() == 1:
 		if p, err = plans.Load(fs.Arg(0)); err != nil {
 			return err
 		}
+	case *builtin != "":
+		if p, err = plans.LoadBuiltinNamed(*builtin); err != nil {
+			return err
+		}
+	default:
+		p = plans.LoadBuiltin()
+		fmt.Fprintln(stderr, "accelplan: no plan given, running the built-in plan (write it out with `accelplan new plan.toml`)")
 	}
 	if *workers < 0 {
 		return fmt.Errorf("-workers must be 0 (all cores) or more, got %d", *workers)
@@ -47,23 +72,63 @@ func cmdRun(ctx context.Context, args []string, stdout, stderr io.Writer) error 
 	if *outDir != "" {
 		dir = *outDir
 	}
-	stage, err := out.NewStage(dir)
+	opt := plans.Options{Workers: *workers, Merge: name == "merge"}
+	if name == "run" {
+		if opt.Shard, opt.Shards, err = shardFromFlagsOrEnv(*shard, *shards, os.Getenv); err != nil {
+			return err
+		}
+	}
+	sharded := opt.Shards > 1
+	var stage *out.Stage
+	if !sharded {
+		// Check the results folder can be written before any work.
+		if stage, err = out.NewStage(dir); err != nil {
+			return err
+		}
+		defer stage.Abandon()
+	}
+	jdir := plans.JournalDir(dir)
+	if *fresh {
+		if err := os.RemoveAll(jdir); err != nil {
+			return fmt.Errorf("cannot clear the journal %s: %w", jdir, err)
+		}
+	}
+	journal, err := plans.OpenJournal(jdir, opt.WriterName())
 	if err != nil {
 		return err
 	}
-	defer stage.Abandon()
+	defer journal.Close()
+	opt.Journal = journal
 
 	n := *workers
 	if n == 0 {
 		n = runtime.GOMAXPROCS(0)
 	}
-	fmt.Fprintf(stderr, "accelplan: %s — %d candidates × %d methods × %d noise draws on %d workers\n",
-		p.Title, countCandidates(p), len(p.Recons), p.Repeats, n)
+	what := fmt.Sprintf("%d candidates × %d methods × %d noise draws", countCandidates(p), len(p.Recons), p.Repeats)
+	if sharded {
+		what += fmt.Sprintf(", shard %d of %d", opt.Shard+1, opt.Shards)
+	}
+	if journal.Len() > 0 && !opt.Merge {
+		what += fmt.Sprintf(", %d jobs in the journal", journal.Len())
+	}
+	fmt.Fprintf(stderr, "accelplan: %s — %s on %d workers\n", p.Title, what, n)
 	bar := newProgress(stderr, *quiet)
-	o, err := plans.Run(ctx, p, plans.Options{Workers: n, Progress: bar.update})
+	o, err := plans.Run(ctx, p, plans.Options{Workers: n, Progress: bar.update, Journal: journal,
+		Shard: opt.Shard, Shards: opt.Shards, Merge: opt.Merge})
 	bar.finish()
 	if err != nil {
+		if errors.Is(err, context.Canceled) {
+			fmt.Fprintf(stderr, "accelplan: finished jobs are kept in %s; run the same command again to resume\n", jdir)
+		}
 		return err
+	}
+	if sharded {
+		fmt.Fprintf(stderr, "accelplan: shard %d of %d done (%d jobs computed, %d from the journal) in %s\n", opt.Shard+1, opt.Shards,
+			o.Computed, o.Restored, jdir)
+		if o.Complete {
+			fmt.Fprintf(stderr, "accelplan: every job of the plan is in the journal; write the results with `accelplan merge -out %s %s`\n", dir, p.Source)
+		}
+		return nil
 	}
 	a := plans.Analyse(o)
 	if err := writeFolder(stage.Dir(), o, a, version, caution); err != nil {
@@ -73,8 +138,51 @@ func cmdRun(ctx context.Context, args []string, stdout, stderr io.Writer) error 
 		return err
 	}
 	printRecommendation(stdout, o, a, dir)
-	fmt.Fprintf(stdout, "\n%s\n", caution)
+	fmt.Fprintf(stdout, "(%d jobs computed, %d from the journal, %.1f s)\n\n%s\n", o.Computed, o.Restored, o.Elapsed.Seconds(), caution)
 	return nil
+}
+
+// shardFromFlagsOrEnv returns the 0-based shard index and count from the
+// -shard flag ("I/N", 1-based), or from a Slurm job array
+// (SLURM_ARRAY_TASK_ID with SLURM_ARRAY_TASK_MIN and SLURM_ARRAY_TASK_COUNT)
+// or a Kubernetes Indexed Job (JOB_COMPLETION_INDEX, 0-based, with -shards).
+func shardFromFlagsOrEnv(flagVal string, shards int, env func(string) string) (int, int, error) {
+	if flagVal != "" {
+		var i, n int
+		if _, err := fmt.Sscanf(flagVal, "%d/%d", &i, &n); err != nil || n < 1 || i < 1 || i > n {
+			return 0, 0, fmt.Errorf("-shard %q: want I/N with 1 ≤ I ≤ N, e.g. -shard 2/8", flagVal)
+		}
+		return i - 1, n, nil
+	}
+	if shards < 0 {
+		return 0, 0, fmt.Errorf("-shards must be at least 1, got %d", shards)
+	}
+	if id := env("SLURM_ARRAY_TASK_ID"); id != "" {
+		i, err1 := strconv.Atoi(id)
+		lo, err2 := strconv.Atoi(cmp.Or(env("SLURM_ARRAY_TASK_MIN"), "0"))
+		n := shards
+		if n == 0 {
+			var err error
+			if n, err = strconv.Atoi(env("SLURM_ARRAY_TASK_COUNT")); err != nil {
+				return 0, 0, fmt.Errorf("SLURM_ARRAY_TASK_ID is set but SLURM_ARRAY_TASK_COUNT is not a number; pass -shards N")
+			}
+		}
+		if err1 != nil || err2 != nil || i-lo < 0 || i-lo >= n {
+			return 0, 0, fmt.Errorf("Slurm array task %q (min %q) is not in 0..%d; submit the array as --array=0-%d", id, env("SLURM_ARRAY_TASK_MIN"), n-1, n-1)
+		}
+		return i - lo, n, nil
+	}
+	if id := env("JOB_COMPLETION_INDEX"); id != "" {
+		i, err := strconv.Atoi(id)
+		if shards < 1 {
+			return 0, 0, fmt.Errorf("JOB_COMPLETION_INDEX is set: pass -shards N with the Job's completions count")
+		}
+		if err != nil || i < 0 || i >= shards {
+			return 0, 0, fmt.Errorf("JOB_COMPLETION_INDEX %q is not in 0..%d", id, shards-1)
+		}
+		return i, shards, nil
+	}
+	return 0, 1, nil
 }
 
 func countCandidates(p *plans.Plan) int {
@@ -179,7 +287,7 @@ func printRecommendation(w io.Writer, o *plans.Outcome, a *plans.Analysis, dir s
 			metric, r.Metric(a.Metric).Mean, r.Bound(a.Metric))
 		fmt.Fprintf(w, "λ: %s.\n", r.LambdaRule)
 	}
-	fmt.Fprintf(w, "Curve, images and tables: %s (computed in %.1f s)\n", dir, o.Elapsed.Seconds())
+	fmt.Fprintf(w, "Report, curve, images and tables: %s\n", dir)
 }
 
 // duration formats a scan time: m:ss from a minute up, seconds with one

@@ -80,6 +80,8 @@ func run(args []string, stdout, stderr io.Writer) int {
 	switch args[0] {
 	case "run":
 		err = cmdRun(ctx, args[1:], stdout, stderr)
+	case "merge":
+		err = cmdMerge(ctx, args[1:], stdout, stderr)
 	case "new":
 		err = cmdNew(args[1:], stdout, stderr)
 	case "check":

@@ -70,7 +70,7 @@ func TestRunWritesFolder(t *testing.T) {
 	if !strings.Contains(stdout, "Recommended:") || !strings.Contains(stdout, "CAUTION") {
 		t.Errorf("stdout lacks the recommendation or the caution:\n%s", stdout)
 	}
-	left, _ := filepath.Glob(filepath.Join(dir, ".res.*"))
+	left, _ := filepath.Glob(filepath.Join(dir, ".res.partial-*"))
 	if len(left) != 0 {
 		t.Errorf("staging folders left behind: %v", left)
 	}
