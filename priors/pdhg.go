@@ -99,9 +99,10 @@ type TVSolver struct {
 	tau    float64
 	sigma  float64
 
-	q, ex              []complex128 // data length
-	px, py, gx, gy     []complex128 // image length
-	xold, xbar, ea, da []complex128
+	q, ex          []complex128 // data length
+	px, py, gx, gy []complex128 // image length
+	xbar, ea, da   []complex128
+	rowX, rowY     []complex128 // one image row each
 }
 
 // NewTVSolver returns a TV solver for operator op on an ny-by-nx image grid
@@ -128,7 +129,7 @@ func NewTVSolver(op simulate.Operator, ny, nx int, b Boundary) (*TVSolver, error
 	s := &TVSolver{op: op, d: d, normE2: normE2,
 		q: mk(m), ex: mk(m),
 		px: mk(n), py: mk(n), gx: mk(n), gy: mk(n),
-		xold: mk(n), xbar: mk(n), ea: mk(n), da: mk(n)}
+		xbar: mk(n), ea: mk(n), da: mk(n), rowX: mk(nx), rowY: mk(nx)}
 	L := math.Sqrt(1.01*normE2 + GradNormSqBound)
 	s.tau, s.sigma = 1/L, 1/L
 	return s, nil
@@ -173,20 +174,31 @@ func (s *TVSolver) Solve(x, y []complex128, lambda float64, opt PDHGOptions) (PD
 			s.q[i] = (s.q[i] + cs*(v-y[i])) * shrink
 		}
 		// Dual step on TV: projection onto the ball of radius λ.
-		s.d.grad(s.gx, s.gy, s.xbar)
-		projectBall(s.px, s.py, s.gx, s.gy, sigma, lambda)
-		// Primal step and extrapolation.
+		// Row by row, so the gradient never leaves the cache. Row i of ∇x̄
+		// reads rows i and i+1 of x̄ only, and x̄ is not written here.
+		nx := s.d.nx
+		for i := 0; i < s.d.ny; i++ {
+			lo, hi := i*nx, (i+1)*nx
+			s.d.gradRow(s.rowX, s.rowY, s.xbar, i)
+			projectBall(s.px[lo:hi], s.py[lo:hi], s.rowX, s.rowY, sigma, lambda)
+		}
+		// Primal step and extrapolation, also by rows: row i of ∇ᵀp reads
+		// rows i and i−1 of p, which is no longer written.
 		s.op.Adjoint(s.ea, s.q)
-		s.d.adj(s.da, s.px, s.py)
 		var dx2, x2 float64
 		ct := complex(tau, 0)
-		for i, v := range x {
-			nv := v - ct*(s.ea[i]+s.da[i])
-			dv := nv - v
-			dx2 += real(dv)*real(dv) + imag(dv)*imag(dv)
-			x2 += real(nv)*real(nv) + imag(nv)*imag(nv)
-			x[i] = nv
-			s.xbar[i] = nv + dv
+		for i := 0; i < s.d.ny; i++ {
+			lo := i * nx
+			s.d.adjRow(s.rowX, s.px, s.py, i)
+			xr, xb, ea := x[lo:lo+nx], s.xbar[lo:lo+nx], s.ea[lo:lo+nx]
+			for j, v := range xr {
+				nv := v - ct*(ea[j]+s.rowX[j])
+				dv := nv - v
+				dx2 += real(dv)*real(dv) + imag(dv)*imag(dv)
+				x2 += real(nv)*real(nv) + imag(nv)*imag(nv)
+				xr[j] = nv
+				xb[j] = nv + dv
+			}
 		}
 		rep.Iterations = k
 		if x2 > 0 {
@@ -199,6 +211,7 @@ func (s *TVSolver) Solve(x, y []complex128, lambda float64, opt PDHGOptions) (PD
 			break
 		}
 		if opt.GapEvery > 0 && (k%opt.GapEvery == 0 || k == opt.MaxIter) {
+			s.d.adj(s.da, s.px, s.py)
 			rep.Gap, rep.Objective = s.gap(x, y, lambda)
 			if opt.Tol > 0 && rep.Gap <= opt.Tol*rep.Objective {
 				rep.Converged = true
@@ -229,7 +242,7 @@ func projectBall(px, py, gx, gy []complex128, sigma, r float64) {
 
 // gap returns the partial primal-dual gap and the primal objective at x with
 // the current duals. It relies on ea and da holding Eᴴq and ∇ᵀp of the
-// current duals, as they do right after a primal step.
+// current duals.
 func (s *TVSolver) gap(x, y []complex128, lambda float64) (gap, obj float64) {
 	s.op.Forward(s.ex, x)
 	var fit, mis float64
@@ -382,7 +395,7 @@ type TGVSolver struct {
 	sigma  float64
 
 	q, ex                        []complex128
-	xold, xbar, ea, da, tmp      []complex128
+	xbar, ea, da, tmp            []complex128
 	w1, w2, wo1, wo2, wb1, wb2   []complex128
 	wt1, wt2                     []complex128
 	px, py, gx, gy               []complex128
@@ -414,7 +427,7 @@ func NewTGVSolver(op simulate.Operator, ny, nx int, b Boundary) (*TGVSolver, err
 	}
 	mk := func(k int) []complex128 { return make([]complex128, k) }
 	s := &TGVSolver{op: op, d: d, q: mk(m), ex: mk(m),
-		xold: mk(n), xbar: mk(n), ea: mk(n), da: mk(n), tmp: mk(n),
+		xbar: mk(n), ea: mk(n), da: mk(n), tmp: mk(n),
 		w1: mk(n), w2: mk(n), wo1: mk(n), wo2: mk(n), wb1: mk(n), wb2: mk(n), wt1: mk(n), wt2: mk(n),
 		px: mk(n), py: mk(n), gx: mk(n), gy: mk(n),
 		r11: mk(n), r22: mk(n), r12: mk(n), e11: mk(n), e22: mk(n), e12: mk(n)}

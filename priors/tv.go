@@ -57,83 +57,93 @@ func newDiff2(ny, nx int, b Boundary) (diff2, error) {
 
 // grad writes ∇x into gx, gy.
 func (d diff2) grad(gx, gy, x []complex128) {
+	nx := d.nx
+	for i := 0; i < d.ny; i++ {
+		d.gradRow(gx[i*nx:(i+1)*nx], gy[i*nx:(i+1)*nx], x, i)
+	}
+}
+
+// gradRow writes row i of ∇x into gxr, gyr (nx values each).
+func (d diff2) gradRow(gxr, gyr, x []complex128, i int) {
 	ny, nx := d.ny, d.nx
 	per := d.b == BoundaryPeriodic
-	for i := 0; i < ny; i++ {
-		row := x[i*nx : (i+1)*nx]
-		gxr := gx[i*nx : (i+1)*nx]
-		for j := 0; j < nx-1; j++ {
-			gxr[j] = row[j+1] - row[j]
-		}
-		if per {
-			gxr[nx-1] = row[0] - row[nx-1]
-		} else {
-			gxr[nx-1] = 0
-		}
-		gyr := gy[i*nx : (i+1)*nx]
-		var next []complex128
-		switch {
-		case i < ny-1:
-			next = x[(i+1)*nx : (i+2)*nx]
-		case per:
-			next = x[:nx]
-		default:
-			clear(gyr)
-			continue
-		}
-		for j := range gyr {
-			gyr[j] = next[j] - row[j]
-		}
+	row := x[i*nx : (i+1)*nx]
+	for j := 0; j < nx-1; j++ {
+		gxr[j] = row[j+1] - row[j]
+	}
+	if per {
+		gxr[nx-1] = row[0] - row[nx-1]
+	} else {
+		gxr[nx-1] = 0
+	}
+	var next []complex128
+	switch {
+	case i < ny-1:
+		next = x[(i+1)*nx : (i+2)*nx]
+	case per:
+		next = x[:nx]
+	default:
+		clear(gyr)
+		return
+	}
+	for j := range gyr {
+		gyr[j] = next[j] - row[j]
 	}
 }
 
 // adj writes ∇ᵀ(gx, gy) = −div(gx, gy) into dst, the adjoint of grad.
 func (d diff2) adj(dst, gx, gy []complex128) {
+	nx := d.nx
+	for i := 0; i < d.ny; i++ {
+		d.adjRow(dst[i*nx:(i+1)*nx], gx, gy, i)
+	}
+}
+
+// adjRow writes row i of ∇ᵀ(gx, gy) into out (nx values).
+func (d diff2) adjRow(out, gx, gy []complex128, i int) {
 	ny, nx := d.ny, d.nx
 	per := d.b == BoundaryPeriodic
-	for i := 0; i < ny; i++ {
-		out := dst[i*nx : (i+1)*nx]
-		gxr := gx[i*nx : (i+1)*nx]
-		// x part: dst[j] = gx[j-1] - gx[j]
-		if nx == 1 {
-			out[0] = 0
-		} else if per {
-			out[0] = gxr[nx-1] - gxr[0]
-			for j := 1; j < nx; j++ {
-				out[j] = gxr[j-1] - gxr[j]
-			}
-		} else {
-			out[0] = -gxr[0]
-			for j := 1; j < nx-1; j++ {
-				out[j] = gxr[j-1] - gxr[j]
-			}
-			out[nx-1] = gxr[nx-2]
+	gxr := gx[i*nx : (i+1)*nx]
+	// x part: out[j] = gx[j-1] - gx[j]
+	switch {
+	case nx == 1:
+		out[0] = 0
+	case per:
+		out[0] = gxr[nx-1] - gxr[0]
+		for j := 1; j < nx; j++ {
+			out[j] = gxr[j-1] - gxr[j]
 		}
-		// y part: dst[i] += gy[i-1] - gy[i]
-		gyr := gy[i*nx : (i+1)*nx]
-		var prev []complex128
-		switch {
-		case ny == 1:
-			continue
-		case i > 0:
-			prev = gy[(i-1)*nx : i*nx]
-		case per:
-			prev = gy[(ny-1)*nx:]
+	default:
+		out[0] = -gxr[0]
+		for j := 1; j < nx-1; j++ {
+			out[j] = gxr[j-1] - gxr[j]
 		}
-		last := i == ny-1 && !per
-		switch {
-		case prev == nil: // first row, Neumann
-			for j := range out {
-				out[j] -= gyr[j]
-			}
-		case last:
-			for j := range out {
-				out[j] += prev[j]
-			}
-		default:
-			for j := range out {
-				out[j] += prev[j] - gyr[j]
-			}
+		out[nx-1] = gxr[nx-2]
+	}
+	// y part: out[j] += gy[i-1] - gy[i]
+	if ny == 1 {
+		return
+	}
+	gyr := gy[i*nx : (i+1)*nx]
+	var prev []complex128
+	switch {
+	case i > 0:
+		prev = gy[(i-1)*nx : i*nx]
+	case per:
+		prev = gy[(ny-1)*nx:]
+	}
+	switch {
+	case prev == nil: // first row, Neumann
+		for j := range out {
+			out[j] -= gyr[j]
+		}
+	case i == ny-1 && !per:
+		for j := range out {
+			out[j] += prev[j]
+		}
+	default:
+		for j := range out {
+			out[j] += prev[j] - gyr[j]
 		}
 	}
 }
