@@ -90,6 +90,12 @@ type PDHGReport struct {
 // and bounds the objective's excess over its minimum whenever the minimiser
 // lies in B, as it does near convergence.
 //
+// Convergence is at the ergodic O(1/k) rate of their Theorem 1. Measured in
+// the tests: on a 32² problem with 35% of k-space the relative gap reaches
+// 4e-6 in 800 iterations; pure denoising (full sampling) at strong weights is
+// the slow case, 1800 iterations coming within 5e-4 of the optimum, where the
+// FGP prox of TV is faster.
+//
 // A TVSolver holds its work space and the dual variables between calls; it
 // allocates nothing per solve. Make one per goroutine.
 type TVSolver struct {

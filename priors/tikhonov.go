@@ -31,6 +31,17 @@ func (k TikhonovKind) String() string {
 	return fmt.Sprintf("TikhonovKind(%d)", int(k))
 }
 
+// ParseTikhonovKind returns the kind named "identity" or "gradient".
+func ParseTikhonovKind(name string) (TikhonovKind, error) {
+	switch name {
+	case "identity":
+		return TikhonovIdentity, nil
+	case "gradient":
+		return TikhonovGradient, nil
+	}
+	return 0, fmt.Errorf("priors: unknown Tikhonov regulariser %q (valid: identity, gradient)", name)
+}
+
 // Tikhonov is the quadratic regulariser R(x) = ½‖D x‖² of Tikhonov AN, Soviet
 // Math Dokl 1963;4:1035-1038, with D the identity or the forward-difference
 // gradient (see Hansen PC, Rank-Deficient and Discrete Ill-Posed Problems,

@@ -270,6 +270,14 @@ func TestTikhonovRejects(t *testing.T) {
 	if _, err := NewTikhonov(TikhonovKind(7), 4, 4, BoundaryNeumann); err == nil {
 		t.Error("unknown kind accepted")
 	}
+	for _, k := range []TikhonovKind{TikhonovIdentity, TikhonovGradient} {
+		if got, err := ParseTikhonovKind(k.String()); err != nil || got != k {
+			t.Errorf("ParseTikhonovKind(%q) = %v, %v", k.String(), got, err)
+		}
+	}
+	if _, err := ParseTikhonovKind("laplacian"); err == nil || !strings.Contains(err.Error(), "valid: identity, gradient") {
+		t.Errorf("unknown kind name: %v", err)
+	}
 	if _, err := NewTikhonovSolver(op, small, 1); err == nil || !strings.Contains(err.Error(), "12 values") {
 		t.Errorf("grid mismatch: %v", err)
 	}

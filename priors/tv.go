@@ -31,6 +31,17 @@ func (b Boundary) String() string {
 	return fmt.Sprintf("Boundary(%d)", int(b))
 }
 
+// ParseBoundary returns the boundary rule named "neumann" or "periodic".
+func ParseBoundary(name string) (Boundary, error) {
+	switch name {
+	case "neumann":
+		return BoundaryNeumann, nil
+	case "periodic":
+		return BoundaryPeriodic, nil
+	}
+	return 0, fmt.Errorf("priors: unknown boundary rule %q (valid: neumann, periodic)", name)
+}
+
 // GradNormSqBound is the bound ‖∇‖² ≤ 8 of the 2D forward-difference
 // gradient, for either boundary rule (each of the two difference operators
 // has norm at most 2). Source: Chambolle A, J Math Imaging Vis 2004;20:89-97,
@@ -186,7 +197,10 @@ func (d diff2) tvValue(x []complex128) float64 {
 //
 // with forward differences and the chosen boundary rule. For a complex image
 // the moduli of the complex differences are used, so real and imaginary parts
-// share one gradient magnitude (vectorial TV).
+// share one gradient magnitude (vectorial TV). Like every forward-difference
+// isotropic TV it reads sharp oblique edges long (Condat L, SIAM J Imaging Sci
+// 2017;10:1258-1290): an area-averaged sharp disc measures about 7% above its
+// perimeter, a smooth one within 0.2% (see the tests).
 //
 // Prox solves the TV denoising problem argmin_u ½‖u − src‖² + t·TV(u) by the
 // fast gradient projection (FGP) of Beck A, Teboulle M, IEEE Trans Image

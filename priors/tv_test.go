@@ -7,6 +7,7 @@ import (
 	"math/rand/v2"
 	"os"
 	"path/filepath"
+	"strings"
 	"testing"
 )
 
@@ -395,8 +396,13 @@ func TestTVRejects(t *testing.T) {
 	if _, err := NewTV(4, 4, Boundary(9)); err == nil {
 		t.Error("unknown boundary accepted")
 	}
-	if BoundaryNeumann.String() != "neumann" || BoundaryPeriodic.String() != "periodic" {
-		t.Error("boundary names")
+	for _, b := range []Boundary{BoundaryNeumann, BoundaryPeriodic} {
+		if got, err := ParseBoundary(b.String()); err != nil || got != b {
+			t.Errorf("ParseBoundary(%q) = %v, %v", b.String(), got, err)
+		}
+	}
+	if _, err := ParseBoundary("mirror"); err == nil || !strings.Contains(err.Error(), "valid: neumann, periodic") {
+		t.Errorf("unknown boundary name: %v", err)
 	}
 }
 
