@@ -44,12 +44,17 @@ against the truth over repeated noise draws, and recommends the shortest scan
 whose lower 95% confidence bound meets the bar.
 
 Commands:
-  accelplan run [-workers N] [-out DIR] [PLAN.toml]
-        run a plan; with no plan, the built-in demonstration plan
+  accelplan run [-workers N] [-out DIR] [-fresh] [-shard I/N] [-builtin NAME | PLAN.toml]
+        run a plan; with no plan, the built-in demonstration plan. Finished
+        jobs are journaled: an interrupted run resumes when run again
   accelplan new [FILE.toml]
         write an annotated starter plan (to standard output without FILE)
   accelplan check PLAN.toml
         validate a plan and list the candidates it would simulate
+  accelplan merge [-out DIR] PLAN.toml
+        write the results of a sweep whose shards ran separately
+  accelplan jobscript [-shards N] PLAN.toml
+        print a Slurm job-array script that runs the shards and the merge
   accelplan version
         print the version
   accelplan help
@@ -82,6 +87,8 @@ func run(args []string, stdout, stderr io.Writer) int {
 		err = cmdRun(ctx, args[1:], stdout, stderr)
 	case "merge":
 		err = cmdMerge(ctx, args[1:], stdout, stderr)
+	case "jobscript":
+		err = cmdJobScript(args[1:], stdout, stderr)
 	case "new":
 		err = cmdNew(args[1:], stdout, stderr)
 	case "check":
