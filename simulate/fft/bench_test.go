@@ -89,6 +89,13 @@ func BenchmarkFFT2_256(b *testing.B) { bench2DSet(b, 256, 256) }
 func BenchmarkFFT2_192(b *testing.B) { bench2DSet(b, 192, 192) }
 func BenchmarkFFT2_240(b *testing.B) { bench2DSet(b, 240, 240) }
 
+// BenchmarkFFT2_512 is the size of a 2×-oversampled gridding transform of a
+// 256² image; only ours and gonum (go-dsp allocates 4 MiB per call).
+func BenchmarkFFT2_512(b *testing.B) {
+	b.Run("ours", func(b *testing.B) { benchOurs2D(b, 512, 512) })
+	b.Run("gonum", func(b *testing.B) { benchGonum2D(b, 512, 512) })
+}
+
 // BenchmarkFFT2_256_Inverse and _Centred time the other 256² entry points.
 func BenchmarkFFT2_256_Inverse(b *testing.B) {
 	p, _ := NewPlan2D(256, 256)
@@ -125,6 +132,14 @@ func BenchmarkFFT1(b *testing.B) {
 			y := make([]complex128, n)
 			for b.Loop() {
 				g.Coefficients(y, x)
+			}
+		})
+		b.Run(fmt.Sprintf("godsp_%d", n), func(b *testing.B) {
+			dspfft.SetWorkerPoolSize(1)
+			defer dspfft.SetWorkerPoolSize(0)
+			x := randVec(n, 1)
+			for b.Loop() {
+				_ = dspfft.FFT(x)
 			}
 		})
 	}

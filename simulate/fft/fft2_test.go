@@ -210,12 +210,17 @@ func TestShiftAgainstNumpy(t *testing.T) {
 // written out with this package's own Shift, which TestShiftAgainstNumpy ties
 // to numpy.
 func TestCentredAgainstExplicitShifts(t *testing.T) {
-	for _, sh := range append(shapes2D, [2]int{6, 10}, [2]int{2, 2}, [2]int{6, 8}, [2]int{5, 8}, [2]int{8, 5}) {
+	// Beyond shapes2D: 6×10 and 82×6 take the modulation path (82 = 2·41 also
+	// runs Bluestein on strided columns), 2×2 and 12×20 the slot rotation.
+	extra := [][2]int{{6, 10}, {2, 2}, {6, 8}, {5, 8}, {8, 5}, {82, 6}, {6, 82}, {12, 20}}
+	seen := map[centring]bool{}
+	for _, sh := range append(shapes2D, extra...) {
 		ny, nx := sh[0], sh[1]
 		p, err := NewPlan2D(ny, nx)
 		if err != nil {
 			t.Fatal(err)
 		}
+		seen[p.centre] = true
 		x := randVec(ny*nx, uint64(ny*7+nx))
 		for _, inv := range []bool{false, true} {
 			want := make([]complex128, ny*nx)
@@ -244,6 +249,11 @@ func TestCentredAgainstExplicitShifts(t *testing.T) {
 			if e := relErr(got, x); e > tol {
 				t.Errorf("%dx%d inverse=%v: centred round trip error %.3g", ny, nx, inv, e)
 			}
+		}
+	}
+	for _, c := range []centring{centreRotate, centreModulate, centreShift} {
+		if !seen[c] {
+			t.Errorf("no shape exercised centring mode %d", c)
 		}
 	}
 }

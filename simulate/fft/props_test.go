@@ -6,6 +6,8 @@ import (
 	"strings"
 	"sync"
 	"testing"
+
+	"gonum.org/v1/gonum/dsp/fourier"
 )
 
 func norm2(x []complex128) float64 {
@@ -120,6 +122,36 @@ func TestCentredDelta(t *testing.T) {
 				t.Fatalf("%dx%d: k-space sample %d of a constant image is %v, want %g", ny, nx, i, v, want)
 			}
 		}
+	}
+}
+
+// TestLargeAgainstGonum checks sizes beyond the small tables: a long 1D
+// transform and a 2D shape whose column blocks are narrower than the default,
+// against gonum's dsp/fourier.CmplxFFT (reference library).
+func TestLargeAgainstGonum(t *testing.T) {
+	for _, n := range []int{1 << 15, 3 * 5 * 7 * 64, 4099} {
+		x := randVec(n, uint64(n))
+		want := scaled(fourier.NewCmplxFFT(n).Coefficients(nil, x), 1/math.Sqrt(float64(n)))
+		p, err := NewPlan(n)
+		if err != nil {
+			t.Fatal(err)
+		}
+		got := make([]complex128, n)
+		p.Forward(got, x)
+		if e := relErr(got, want); e > tol {
+			t.Errorf("n=%d: relative error %.3g against gonum", n, e)
+		}
+	}
+	ny, nx := 1024, 40
+	x := randVec(ny*nx, 77)
+	p, err := NewPlan2D(ny, nx)
+	if err != nil {
+		t.Fatal(err)
+	}
+	got := make([]complex128, ny*nx)
+	p.Forward(got, x)
+	if e := relErr(got, ref2DGonum(x, ny, nx, false)); e > tol {
+		t.Errorf("%dx%d: relative error %.3g against gonum", ny, nx, e)
 	}
 }
 

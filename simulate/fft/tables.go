@@ -61,9 +61,6 @@ func newTables(n int, batched bool) (*tables, error) {
 		return nil, fmt.Errorf("fft: transform length %d exceeds the supported maximum %d", n, maxLen)
 	}
 	radices, ok := factor(n, !batched)
-	if tuneRadices != nil && prod(tuneRadices) == n && !batched {
-		radices = tuneRadices
-	}
 	if !ok {
 		b, err := newBluestein(n)
 		if err != nil {
@@ -394,14 +391,4 @@ func runLast(st *stage, y, x []complex128, g *geom, scale float64, wk *work) {
 	default:
 		rgenlast(y, x, g, st.radix, st.gen, scale, wk.gen)
 	}
-}
-
-var tuneRadices []int
-
-func prod(r []int) int {
-	p := 1
-	for _, v := range r {
-		p *= v
-	}
-	return p
 }
