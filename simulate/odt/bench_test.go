@@ -29,12 +29,11 @@ func BenchmarkOperatorForwardAdjoint256(b *testing.B) {
 	}
 	x, y := make([]complex128, op.ImageLen()), make([]complex128, op.DataLen())
 	x[len(x)/2+3] = 1
-	b.ReportMetric(float64(op.DataLen()), "samples")
-	b.ResetTimer()
 	for b.Loop() {
 		op.Forward(y, x)
 		op.Adjoint(x, y)
 	}
+	b.ReportMetric(float64(op.DataLen()), "samples")
 }
 
 // Noiseless data from the exact spectrum of the demo cell.

@@ -65,7 +65,10 @@
 // angular-spectrum propagator in the medium and an obliquity weight on each
 // slice's scattered part chosen so that its first-order term is the first
 // Born integral (the idea of the multi-layer Born model, Chen M et al.,
-// Optica 2020;7:394-403, recalled from memory). Linearizer turns a field into
+// Optica 2020;7:394-403, recalled from memory). Its fields span a detector
+// several FOVs wide, so that light scattered beyond the FOV is kept; noise of
+// σ per grid-sized pixel then reaches each datum as σ·√Span (see
+// AddFieldNoise). Linearizer turns a field into
 // data for the operator, either as the Born scattered field u − u_in or as
 // the Rytov field u_in·ln(u/u_in) with the phase unwrapped along x (Kak &
 // Slaney 1988, ch. 6; Devaney AJ, Ultrason Imaging 1982;4:336-350; 1D

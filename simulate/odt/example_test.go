@@ -106,3 +106,31 @@ func ExampleSimulateFields() {
 	// Output:
 	// 3 fields of 384 samples over 3 FOVs -> 93 rytov data
 }
+
+// The demo cell: its largest index, the phase delay it imposes (far beyond
+// the weak-scattering regime of the first Born approximation) and its truth
+// image on a 64² grid of a 16 µm FOV.
+func ExampleDemoCell() {
+	cell := odt.DemoCell()
+	if err := cell.Validate(); err != nil {
+		fmt.Println(err)
+		return
+	}
+	dn, err := cell.Contrast(16)
+	if err != nil {
+		fmt.Println(err)
+		return
+	}
+	truth := dn.Rasterize(64, 64)
+	var peak float64
+	for _, v := range truth {
+		peak = max(peak, v)
+	}
+	fmt.Printf("index in the nucleolus %.3f\n", cell.Index(-1.3, 0.5))
+	fmt.Printf("phase delay at 532 nm: %.1f rad\n", cell.MaxPhase(0.532, 0.01))
+	fmt.Printf("largest pixel of the 64² truth: %.3f\n", peak)
+	// Output:
+	// index in the nucleolus 1.375
+	// phase delay at 532 nm: 2.4 rad
+	// largest pixel of the 64² truth: 0.045
+}

@@ -175,3 +175,20 @@ func TestFieldsReject(t *testing.T) {
 		t.Error("wrong sample count accepted")
 	}
 }
+
+// Linearizer.Data runs once per noise draw: it allocates nothing.
+func TestLinearizerAllocatesNothing(t *testing.T) {
+	a := rytovArcs(t)
+	f, err := SimulateFields(a, scaled(DemoCell(), 0.1), BPMOptions{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	lin, err := NewLinearizer(a, f.Oversample, f.Span)
+	if err != nil {
+		t.Fatal(err)
+	}
+	y := make([]complex128, a.Len())
+	if n := testing.AllocsPerRun(3, func() { _ = lin.Data(y, f, RytovField) }); n != 0 {
+		t.Errorf("%g allocations per Data call", n)
+	}
+}

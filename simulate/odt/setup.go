@@ -66,7 +66,7 @@ func (s Setup) MediumWavenumber() float64 { return s.Medium / s.Wavelength }
 // DetectedHalfWidth returns the largest detector frequency index j_max =
 // ⌊NA_det·L/λ⌋: the detector keeps q_j = j/L for |j| ≤ j_max.
 func (s Setup) DetectedHalfWidth() int {
-	return int(math.Floor(s.NADetection*s.FOV/s.Wavelength + 1e-9))
+	return int(math.Floor(s.NADetection * s.FOV / s.Wavelength))
 }
 
 // TransverseBound returns (NA_ill + NA_det)·L/λ in cycles per FOV, the
