@@ -67,6 +67,11 @@ func OpenJournal(dir, writer string) (*Journal, error) {
 	}
 	sort.Strings(files)
 	for _, name := range files {
+		// Only regular files hold entries; anything else (a device, a
+		// folder) is not read, so it cannot stall or flood the reader.
+		if fi, err := os.Stat(name); err != nil || !fi.Mode().IsRegular() {
+			continue
+		}
 		if err := j.load(name); err != nil {
 			return nil, err
 		}

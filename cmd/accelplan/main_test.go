@@ -173,3 +173,38 @@ func TestUnknownCommand(t *testing.T) {
 		t.Errorf("help must carry the caution (exit %d)", code)
 	}
 }
+
+// A full disk (simulated with /dev/full, which fails every write with
+// ENOSPC) must stop the run with a clear message and leave earlier results.
+func TestFullDiskKeepsEarlierResults(t *testing.T) {
+	if _, err := os.Stat("/dev/full"); err != nil {
+		t.Skip("no /dev/full on this system")
+	}
+	dir := t.TempDir()
+	res := filepath.Join(dir, "res")
+	plan := filepath.Join(dir, "p.toml")
+	write(t, plan, quickPlan(res))
+	if code, _, stderr := runCmd("run", "-quiet", plan); code != 0 {
+		t.Fatalf("first run: %s", stderr)
+	}
+	before, _ := os.ReadFile(filepath.Join(res, "summary.csv"))
+	// Fresh journal whose file is the full device.
+	jdir := filepath.Join(dir, ".res.journal")
+	if err := os.RemoveAll(jdir); err != nil {
+		t.Fatal(err)
+	}
+	if err := os.MkdirAll(jdir, 0o755); err != nil {
+		t.Fatal(err)
+	}
+	if err := os.Symlink("/dev/full", filepath.Join(jdir, "local.jsonl")); err != nil {
+		t.Fatal(err)
+	}
+	code, _, stderr := runCmd("run", "-quiet", plan)
+	if code == 0 || !strings.Contains(stderr, "disk full") {
+		t.Fatalf("exit %d, stderr %q; want a failure that names the full disk", code, stderr)
+	}
+	after, err := os.ReadFile(filepath.Join(res, "summary.csv"))
+	if err != nil || !bytes.Equal(before, after) {
+		t.Errorf("earlier results changed or lost (%v)", err)
+	}
+}
