@@ -7,11 +7,10 @@ package fft
 // writes v_i · w^(i·p), w = exp(-2πi/(r·m)), to output slot i of the group
 // (Stockham's self-sorting order, so no bit-reversal pass is needed). Where
 // the runs lie is given by a geom (see tables.go), which also carries the
-// slot permutations: the inverse pass uses the conjugate roots, and since its
-// butterfly output i equals the forward output (r-i) mod r, the same code
-// writes v_i to slot (r-i) mod r with the inverse twiddle table stored in that
-// order; the centred transform rotates slots by r/2. The last pass has m = 1,
-// needs no twiddles and applies the overall scale.
+// slot permutations: the inverse pass uses the conjugate twiddles and feeds
+// the forward butterfly its inputs in the order k → (r-k) mod r, which turns
+// it into the inverse butterfly; the centred transform rotates slots by r/2.
+// The last pass has m = 1, needs no twiddles and applies the overall scale.
 //
 // Twiddles are stored as interleaved float64 pairs, tw[2·((r-1)·p+i-1)] =
 // Re w_i, tw[2·((r-1)·p+i-1)+1] = Im w_i, read by constant offsets from one

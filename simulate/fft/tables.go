@@ -24,9 +24,9 @@ type stage struct {
 	stride int // product of the radices of the earlier stages
 	// tw holds the forward twiddles w^(i·p), w = exp(-2πi/span), for p < m and
 	// 0 < i < radix, as float64 pairs at 2·(p·(radix-1)+i-1); twInv holds the
-	// inverse ones in butterfly-output order, w^(-(radix-i)·p).
+	// inverse ones, w^(-i·p), in the same order.
 	tw, twInv []float64
-	gen       *direct // tables of a direct butterfly (radix not in 2, 3, 4, 5)
+	gen       *direct // tables of a direct butterfly (radix not in 2, 3, 4, 5, 8)
 }
 
 // direct holds the cosines and sines of a direct butterfly of odd prime
@@ -44,6 +44,10 @@ type tables struct {
 	// rotatable: the first and last radices are even, so that exec can
 	// centre the transform by rotating butterfly slots (see exec).
 	rotatable bool
+	// single holds the pass geometries of one contiguous sequence
+	// (layout contiguous(1)), indexed [inverse][centred][stage], so that the
+	// row pass of a 2D transform does not recompute them for every row.
+	single [2][2][]geom
 }
 
 var errLen = errors.New("fft: transform length must be at least 1")
@@ -80,7 +84,7 @@ func newTables(n int, batched bool) (*tables, error) {
 					k := 2 * (p*(r-1) + i - 1)
 					w := unitRoot(-(i * p), span)
 					st.tw[k], st.tw[k+1] = real(w), imag(w)
-					w = unitRoot((r-i)*p, span)
+					w = unitRoot(i*p, span)
 					st.twInv[k], st.twInv[k+1] = real(w), imag(w)
 				}
 			}
@@ -100,6 +104,18 @@ func newTables(n int, batched bool) (*tables, error) {
 	}
 	if len(t.stages) > 0 {
 		t.rotatable = t.stages[0].radix%2 == 0 && t.stages[len(t.stages)-1].radix%2 == 0
+	}
+	for i, inv := range []bool{false, true} {
+		for c, centred := range []bool{false, true} {
+			if centred && !t.rotatable {
+				continue
+			}
+			gs := make([]geom, len(t.stages))
+			for k := range t.stages {
+				t.stages[k].geometry(&gs[k], k == 0, k == len(t.stages)-1, contiguous(1), inv, centred)
+			}
+			t.single[i][c] = gs
+		}
 	}
 	return t, nil
 }
@@ -252,6 +268,10 @@ func (t *tables) exec(out, in, a, b []complex128, l layout, inv, centred bool, s
 		}
 		return
 	}
+	var pre []geom
+	if l == contiguous(1) {
+		pre = t.single[b2i(inv)][b2i(centred)]
+	}
 	var g geom
 	src := in
 	last := len(t.stages) - 1
@@ -264,15 +284,20 @@ func (t *tables) exec(out, in, a, b []complex128, l layout, inv, centred bool, s
 		case k%2 == 1:
 			dst = b
 		}
-		st.geometry(&g, k == 0, k == last, l, inv, centred)
+		gk := &g
+		if pre != nil {
+			gk = &pre[k]
+		} else {
+			st.geometry(gk, k == 0, k == last, l, inv, centred)
+		}
 		if k == last {
-			runLast(st, dst, src, &g, scale, wk)
+			runLast(st, dst, src, gk, scale, wk)
 		} else {
 			tw := st.tw
 			if inv {
 				tw = st.twInv
 			}
-			run(st, dst, src, tw, &g, wk)
+			run(st, dst, src, tw, gk, wk)
 		}
 		src = dst
 	}
@@ -291,13 +316,11 @@ func (st *stage) geometry(g *geom, first, last bool, l layout, inv, centred bool
 			orot = r / 2
 		}
 	}
-	g.natural = !inv && orot == 0
+	// The inverse butterfly is the forward one on inputs in the order
+	// k → (r-k) mod r, since exp(+2πi·jk/r) = exp(-2πi·j(r-k)/r).
+	g.natural = orot == 0
 	for i := range r {
-		j := i
-		if inv && i != 0 {
-			j = r - i
-		}
-		j += orot
+		j := i + orot
 		if j >= r {
 			j -= r
 		}
@@ -309,7 +332,11 @@ func (st *stage) geometry(g *geom, first, last bool, l layout, inv, centred bool
 		g.xstep = l.ldIn
 	}
 	for k := range r {
-		kk := k + irot
+		kk := k
+		if inv && k != 0 {
+			kk = r - k
+		}
+		kk += irot
 		if kk >= r {
 			kk -= r
 		}
@@ -338,10 +365,9 @@ func (st *stage) geometry(g *geom, first, last bool, l layout, inv, centred bool
 		g.yo[i] *= st.stride * l.ldOut
 	}
 	if !first {
+		// The input is a scratch block: slot k starts at (its row)·s, as
+		// already set, and the groups t are s0 apart.
 		g.xstep = l.s0
-		for k := range r {
-			g.xo[k] = k * s
-		}
 	}
 }
 
@@ -391,4 +417,11 @@ func runLast(st *stage, y, x []complex128, g *geom, scale float64, wk *work) {
 	default:
 		rgenlast(y, x, g, st.radix, st.gen, scale, wk.gen)
 	}
+}
+
+func b2i(b bool) int {
+	if b {
+		return 1
+	}
+	return 0
 }
