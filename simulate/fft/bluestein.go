@@ -1,5 +1,7 @@
 package fft
 
+import "fmt"
+
 // bluestein computes a DFT of any length n as a circular convolution of
 // length m (a power of two ≥ 2n-1) with a chirp, using the identity
 // 2jk = j² + k² - (k-j)²:
@@ -21,6 +23,9 @@ func newBluestein(n int) (*bluestein, error) {
 	m := 1
 	for m < 2*n-1 {
 		m *= 2
+	}
+	if m > maxLen {
+		return nil, fmt.Errorf("fft: length %d needs a chirp-z transform of length %d, above the supported maximum %d", n, m, maxLen)
 	}
 	inner, err := newTables(m, false)
 	if err != nil {

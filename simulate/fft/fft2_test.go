@@ -4,6 +4,7 @@ import (
 	"encoding/json"
 	"fmt"
 	"math"
+	"math/rand/v2"
 	"os"
 	"testing"
 
@@ -15,6 +16,7 @@ var shapes2D = [][2]int{
 	{1, 1}, {1, 8}, {8, 1}, {2, 3}, {4, 4}, {3, 5}, {8, 12}, {12, 8}, {15, 16},
 	{16, 30}, {60, 64}, {64, 64}, {97, 12}, {7, 11}, {100, 128}, {128, 100},
 	{192, 192}, {240, 256}, {256, 256}, {9, 10}, {10, 9},
+	{16, 65}, {8, 129}, {12, 66}, // a last column block of width 1 or 2
 }
 
 // ref2DGoDSP is go-dsp's fft.FFT2 / IFFT2 (reference library) on the
@@ -254,6 +256,36 @@ func TestCentredAgainstExplicitShifts(t *testing.T) {
 	for _, c := range []centring{centreRotate, centreModulate, centreShift} {
 		if !seen[c] {
 			t.Errorf("no shape exercised centring mode %d", c)
+		}
+	}
+}
+
+// TestRandomShapes draws 60 shapes (seeded) with sides up to 140 and checks
+// Forward against gonum row/column transforms (reference library) and the
+// centred pair against explicit shifts, in place and out of place. It
+// catches block-remainder and radix-order cases a fixed table can miss.
+func TestRandomShapes(t *testing.T) {
+	r := rand.New(rand.NewPCG(2024, 6))
+	for range 60 {
+		ny, nx := 1+r.IntN(140), 1+r.IntN(140)
+		p, err := NewPlan2D(ny, nx)
+		if err != nil {
+			t.Fatal(err)
+		}
+		x := randVec(ny*nx, uint64(ny*1000+nx))
+		got := make([]complex128, ny*nx)
+		p.Forward(got, x)
+		if e := relErr(got, ref2DGonum(x, ny, nx, false)); e > tol {
+			t.Errorf("%dx%d: Forward relative error %.3g against gonum", ny, nx, e)
+		}
+		want := make([]complex128, ny*nx)
+		IShift(want, x, ny, nx)
+		p.Inverse(want, want)
+		Shift(want, want, ny, nx)
+		copy(got, x)
+		p.CentredInverse(got, got)
+		if e := relErr(got, want); e > tol {
+			t.Errorf("%dx%d: in-place CentredInverse differs from explicit shifts by %.3g", ny, nx, e)
 		}
 	}
 }

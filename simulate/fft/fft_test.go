@@ -139,3 +139,27 @@ func TestAgainstDefinitionAllRadices(t *testing.T) {
 		}
 	}
 }
+
+// TestRandomLengths checks 80 seeded random lengths up to 2000 in both
+// directions against gonum's CmplxFFT (reference library).
+func TestRandomLengths(t *testing.T) {
+	r := rand.New(rand.NewPCG(7, 2024))
+	for range 80 {
+		n := 1 + r.IntN(2000)
+		x := randVec(n, uint64(n)+5000)
+		g := fourier.NewCmplxFFT(n)
+		p, err := NewPlan(n)
+		if err != nil {
+			t.Fatal(err)
+		}
+		got := make([]complex128, n)
+		p.Forward(got, x)
+		if e := relErr(got, scaled(g.Coefficients(nil, x), 1/math.Sqrt(float64(n)))); e > tol {
+			t.Errorf("n=%d: forward relative error %.3g against gonum", n, e)
+		}
+		p.Inverse(got, x)
+		if e := relErr(got, scaled(g.Sequence(nil, x), 1/math.Sqrt(float64(n)))); e > tol {
+			t.Errorf("n=%d: inverse relative error %.3g against gonum", n, e)
+		}
+	}
+}

@@ -190,9 +190,9 @@ func r4last(y, x []complex128, g *geom, scale float64) {
 	}
 }
 
-// r4s1 is r4 for s = 1 (first pass of a single sequence) with outputs in
-// natural slot order: every butterfly has its own twiddles and writes 4
-// adjacent outputs.
+// r4s1 is r4 for s = 1, the first pass of a single sequence (never the
+// last, so its output slots are in natural order): every butterfly has its
+// own twiddles and writes 4 adjacent outputs.
 func r4s1(y, x []complex128, tw []float64, g *geom) {
 	m := g.m
 	x0 := x[g.xo[0] : g.xo[0]+m]
@@ -216,36 +216,6 @@ func r4s1(y, x []complex128, tw []float64, g *geom) {
 		o[1] = complex(vr*w[0]-vi*w[1], vr*w[1]+vi*w[0])
 		vr, vi = t1r-t3i, t1i+t3r
 		o[3] = complex(vr*w[4]-vi*w[5], vr*w[5]+vi*w[4])
-	}
-}
-
-// r4s1p is r4s1 with permuted output slots (inverse or centred).
-func r4s1p(y, x []complex128, tw []float64, g *geom) {
-	m := g.m
-	x0 := x[g.xo[0] : g.xo[0]+m]
-	x1 := x[g.xo[1] : g.xo[1]+m][:len(x0)]
-	x2 := x[g.xo[2] : g.xo[2]+m][:len(x0)]
-	x3 := x[g.xo[3] : g.xo[3]+m][:len(x0)]
-	p1 := g.yo[1] & 3
-	p2 := g.yo[2] & 3
-	p3 := g.yo[3] & 3
-	for p := range x0 {
-		w := tw[6*p : 6*p+6 : 6*p+6]
-		o := y[4*p : 4*p+4 : 4*p+4]
-		u, v := x0[p], x2[p]
-		t0r, t0i := real(u)+real(v), imag(u)+imag(v)
-		t1r, t1i := real(u)-real(v), imag(u)-imag(v)
-		u, v = x1[p], x3[p]
-		t2r, t2i := real(u)+real(v), imag(u)+imag(v)
-		t3r, t3i := real(u)-real(v), imag(u)-imag(v)
-		vr, vi := t0r+t2r, t0i+t2i
-		o[0] = complex(vr, vi)
-		vr, vi = t0r-t2r, t0i-t2i
-		o[p2] = complex(vr*w[2]-vi*w[3], vr*w[3]+vi*w[2])
-		vr, vi = t1r+t3i, t1i-t3r
-		o[p1] = complex(vr*w[0]-vi*w[1], vr*w[1]+vi*w[0])
-		vr, vi = t1r-t3i, t1i+t3r
-		o[p3] = complex(vr*w[4]-vi*w[5], vr*w[5]+vi*w[4])
 	}
 }
 
@@ -471,9 +441,9 @@ func r8last(y, x []complex128, g *geom, scale float64) {
 	}
 }
 
-// r8s1 is r8 for s = 1 (first pass of a single sequence) with outputs in
-// natural slot order: every butterfly has its own twiddles and writes 8
-// adjacent outputs.
+// r8s1 is r8 for s = 1, the first pass of a single sequence (never the
+// last, so its output slots are in natural order): every butterfly has its
+// own twiddles and writes 8 adjacent outputs.
 func r8s1(y, x []complex128, tw []float64, g *geom) {
 	m := g.m
 	x0 := x[g.xo[0] : g.xo[0]+m]
@@ -529,72 +499,6 @@ func r8s1(y, x []complex128, tw []float64, g *geom) {
 		o[3] = complex(vr*w[4]-vi*w[5], vr*w[5]+vi*w[4])
 		vr, vi = d2r-d3r, d2i-d3i
 		o[7] = complex(vr*w[12]-vi*w[13], vr*w[13]+vi*w[12])
-	}
-}
-
-// r8s1p is r8s1 with permuted output slots (inverse or centred).
-func r8s1p(y, x []complex128, tw []float64, g *geom) {
-	m := g.m
-	x0 := x[g.xo[0] : g.xo[0]+m]
-	x1 := x[g.xo[1] : g.xo[1]+m][:len(x0)]
-	x2 := x[g.xo[2] : g.xo[2]+m][:len(x0)]
-	x3 := x[g.xo[3] : g.xo[3]+m][:len(x0)]
-	x4 := x[g.xo[4] : g.xo[4]+m][:len(x0)]
-	x5 := x[g.xo[5] : g.xo[5]+m][:len(x0)]
-	x6 := x[g.xo[6] : g.xo[6]+m][:len(x0)]
-	x7 := x[g.xo[7] : g.xo[7]+m][:len(x0)]
-	p1 := g.yo[1] & 7
-	p2 := g.yo[2] & 7
-	p3 := g.yo[3] & 7
-	p4 := g.yo[4] & 7
-	p5 := g.yo[5] & 7
-	p6 := g.yo[6] & 7
-	p7 := g.yo[7] & 7
-	for p := range x0 {
-		w := tw[14*p : 14*p+14 : 14*p+14]
-		o := y[8*p : 8*p+8 : 8*p+8]
-		u, v := x0[p], x4[p]
-		a0r, a0i := real(u)+real(v), imag(u)+imag(v)
-		u, v = x2[p], x6[p]
-		a2r, a2i := real(u)+real(v), imag(u)+imag(v)
-		b0r, b0i := a0r+a2r, a0i+a2i
-		b2r, b2i := a0r-a2r, a0i-a2i
-		u, v = x1[p], x5[p]
-		a1r, a1i := real(u)+real(v), imag(u)+imag(v)
-		u, v = x3[p], x7[p]
-		a3r, a3i := real(u)+real(v), imag(u)+imag(v)
-		b1r, b1i := a1r+a3r, a1i+a3i
-		b3r, b3i := a1i-a3i, a3r-a1r
-		vr, vi := b0r+b1r, b0i+b1i
-		o[0] = complex(vr, vi)
-		vr, vi = b0r-b1r, b0i-b1i
-		o[p4] = complex(vr*w[6]-vi*w[7], vr*w[7]+vi*w[6])
-		vr, vi = b2r+b3r, b2i+b3i
-		o[p2] = complex(vr*w[2]-vi*w[3], vr*w[3]+vi*w[2])
-		vr, vi = b2r-b3r, b2i-b3i
-		o[p6] = complex(vr*w[10]-vi*w[11], vr*w[11]+vi*w[10])
-		u, v = x1[p], x5[p]
-		a5r, a5i := real(u)-real(v), imag(u)-imag(v)
-		u, v = x3[p], x7[p]
-		a7r, a7i := real(u)-real(v), imag(u)-imag(v)
-		er, ei := a5r-a7r, a5i-a7i
-		fr, fi := a5r+a7r, a5i+a7i
-		d1r, d1i := (er+fi)*sqrtH, (ei-fr)*sqrtH
-		d3r, d3i := (fi-er)*sqrtH, -(ei+fr)*sqrtH
-		u, v = x0[p], x4[p]
-		a4r, a4i := real(u)-real(v), imag(u)-imag(v)
-		u, v = x2[p], x6[p]
-		a6r, a6i := real(u)-real(v), imag(u)-imag(v)
-		d0r, d0i := a4r+a6i, a4i-a6r
-		d2r, d2i := a4r-a6i, a4i+a6r
-		vr, vi = d0r+d1r, d0i+d1i
-		o[p1] = complex(vr*w[0]-vi*w[1], vr*w[1]+vi*w[0])
-		vr, vi = d0r-d1r, d0i-d1i
-		o[p5] = complex(vr*w[8]-vi*w[9], vr*w[9]+vi*w[8])
-		vr, vi = d2r+d3r, d2i+d3i
-		o[p3] = complex(vr*w[4]-vi*w[5], vr*w[5]+vi*w[4])
-		vr, vi = d2r-d3r, d2i-d3i
-		o[p7] = complex(vr*w[12]-vi*w[13], vr*w[13]+vi*w[12])
 	}
 }
 

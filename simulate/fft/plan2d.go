@@ -22,8 +22,8 @@ func columnBlock(ny, nx int) int {
 	return min(w, nx)
 }
 
-// maxLen2D bounds ny·nx.
-const maxLen2D = 1 << 30
+// maxLen2D bounds ny·nx (4 GiB of complex128 per image).
+const maxLen2D = 1 << 28
 
 // Plan2D transforms row-major images of ny rows by nx columns (element (i, j)
 // at index i·nx+j). Make it once with NewPlan2D and reuse it; its methods
@@ -47,8 +47,8 @@ type Plan2D struct {
 type centring int
 
 const (
-	centreRotate   centring = iota // both sides multiples of 4: slot rotation in the passes, free
-	centreModulate                 // both sides even: (-1)^(i+j) modulation folded into the copies
+	centreRotate   centring = iota // first and last radices even on both sides (multiples of 4, or 2): slot rotation, free
+	centreModulate                 // other even sides: (-1)^(i+j) modulation of the input block copies and of the output rows
 	centreShift                    // a side is odd: explicit IShift and Shift through shiftBuf
 )
 
@@ -74,8 +74,8 @@ func NewPlan2D(ny, nx int) (*Plan2D, error) {
 func newPlan2DFrom(ny, nx int, rows, cols *tables) *Plan2D {
 	b := columnBlock(ny, nx)
 	p := &Plan2D{
-		block: b,
-		ny:    ny, nx: nx, rows: rows, cols: cols,
+		ny: ny, nx: nx, rows: rows, cols: cols,
+		block:  b,
 		rowA:   make([]complex128, nx),
 		rowB:   make([]complex128, nx),
 		blkA:   make([]complex128, ny*b),
@@ -128,8 +128,10 @@ func (p *Plan2D) Inverse(dst, src []complex128) {
 
 // CentredForward transforms an image on the FFT-centred grid (centre pixel
 // at (ny/2, nx/2), see package simulate) to k-space with DC at (ny/2, nx/2):
-// it equals Shift ∘ Forward ∘ IShift. For even ny and nx it is done without
-// moving data, by modulating with (-1)^(i+j) before and after the transform.
+// it equals Shift ∘ Forward ∘ IShift. When ny and nx are multiples of 4 it
+// costs no more than Forward, the shifts becoming a relabelling of butterfly
+// slots in the first and last passes; other even sides use the modulation
+// identity with (-1)^(i+j), odd sides explicit shifts through a scratch image.
 // The aliasing and length rules of Forward apply.
 func (p *Plan2D) CentredForward(dst, src []complex128) {
 	p.check(dst, src)
@@ -183,8 +185,8 @@ func (p *Plan2D) transform(dst, src []complex128, inv, centred bool) {
 	}
 }
 
-// modulated computes the centred transform for even sides that are not both
-// multiples of 4, as (-1)^((ny+nx)/2) (-1)^(k+l) DFT[(-1)^(i+j) x]: the input
+// modulated computes the centred transform for even sides where slot
+// rotation is not available, as (-1)^((ny+nx)/2) (-1)^(k+l) DFT[(-1)^(i+j) x]: the input
 // sign is applied while copying each column block in, the output sign to
 // each row after its transform, while it is in cache.
 func (p *Plan2D) modulated(dst, src []complex128, inv bool) {

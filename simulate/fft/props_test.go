@@ -223,7 +223,7 @@ func TestCloneConcurrent(t *testing.T) {
 }
 
 func TestBadInput(t *testing.T) {
-	for _, n := range []int{0, -3, maxLen + 1} {
+	for _, n := range []int{0, -3, maxLen + 1, 1<<24 + 1} { // 2^24+1 = 97·257·673 needs a chirp-z length 2^26
 		if _, err := NewPlan(n); err == nil {
 			t.Errorf("NewPlan(%d) gave no error", n)
 		} else if !strings.HasPrefix(err.Error(), "fft: ") {

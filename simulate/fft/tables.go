@@ -10,9 +10,9 @@ import (
 // butterfly; a length with a larger prime factor goes through Bluestein.
 const maxDirectPrime = 37
 
-// maxLen bounds the length of one transform so that index arithmetic and
-// table sizes stay well inside int on every platform.
-const maxLen = 1 << 28
+// maxLen bounds the length of one transform (and of the inner transform of
+// Bluestein's algorithm), so that twiddle tables stay below about 1 GiB.
+const maxLen = 1 << 25
 
 // stage is one pass of the self-sorting mixed-radix algorithm. Before the
 // pass the data hold span-long sub-sequences interleaved with stride
@@ -164,27 +164,24 @@ func factor(n int, use8 bool) ([]int, bool) {
 	return append(r, pow2[len(pow2)-1]), true
 }
 
-// unitRoot returns exp(2πi·k/n), reducing k modulo n and folding the angle
-// into the first octant so that the table is accurate to the last bit or so.
+// unitRoot returns exp(2πi·k/n), reducing k modulo n and the angle to the
+// first octant before calling Sincos, so that the tables are accurate to
+// about one unit in the last place and exactly symmetric.
 func unitRoot(k, n int) complex128 {
 	k %= n
 	if k < 0 {
 		k += n
 	}
-	// exp(2πi k/n) by octant symmetry: work with 8k against 8n.
-	k8, n8 := 8*k, n // angle = 2π k/n = (π/4)·(8k/n)
-	oct := k8 / n8   // 0..7
-	rem := k8 - oct*n8
-	// remainder angle within the octant, in [0, π/4)
-	var s, c float64
-	if oct%2 == 0 {
-		s, c = math.Sincos(math.Pi / 4 * float64(rem) / float64(n8))
+	// θ = 2πk/n = (π/4)·(8k/n): octant o = ⌊8k/n⌋, remainder r = 8k - o·n.
+	o, r := 8*k/n, 8*k%n
+	var phi float64 // reduced angle in [0, π/4]
+	if o%2 == 0 {
+		phi = math.Pi / 4 * float64(r) / float64(n) // θ = o·π/4 + φ
 	} else {
-		// reflect: angle = (oct+1)·π/4 - θ'
-		s, c = math.Sincos(math.Pi / 4 * float64(n8-rem) / float64(n8))
+		phi = math.Pi / 4 * float64(n-r) / float64(n) // θ = (o+1)·π/4 - φ
 	}
-	// (c, s) is cos/sin of the reduced angle φ in [0, π/4]; map back.
-	switch oct {
+	s, c := math.Sincos(phi)
+	switch o {
 	case 0: // θ = φ
 		return complex(c, s)
 	case 1: // θ = π/2 - φ
@@ -241,7 +238,6 @@ const maxRadix = maxDirectPrime
 type geom struct {
 	m, s         int
 	xstep, ystep int
-	natural      bool // yo[i] == i·s: outputs in natural slot order
 	xo, yo       [maxRadix]int
 }
 
@@ -249,8 +245,9 @@ type geom struct {
 // multiplies them by scale. a and b are scratch of length n·s0 for the
 // intermediate passes; they must not overlap in, out or each other, except
 // that b may be in when in and out differ (in is consumed by the first pass).
-// in and out may be the same slice (each pass reads all inputs of a butterfly before
-// writing its outputs, and only the last pass writes out).
+// in and out may be the same slice: only the last pass writes out, and when
+// it is also the first pass its butterflies read all their inputs before
+// they store.
 //
 // With centred set (only when t.rotatable), exec computes
 // fftshift(DFT(ifftshift(x))) at no extra cost: for even n, ifftshift moves
@@ -318,7 +315,6 @@ func (st *stage) geometry(g *geom, first, last bool, l layout, inv, centred bool
 	}
 	// The inverse butterfly is the forward one on inputs in the order
 	// k → (r-k) mod r, since exp(+2πi·jk/r) = exp(-2πi·j(r-k)/r).
-	g.natural = orot == 0
 	for i := range r {
 		j := i + orot
 		if j >= r {
@@ -371,25 +367,24 @@ func (st *stage) geometry(g *geom, first, last bool, l layout, inv, centred bool
 	}
 }
 
+// run executes a pass that is not the last one; its output slots are never
+// rotated (only the last pass rotates them), so the stride-1 kernels may
+// write their outputs in natural order. Those kernels also need adjacent
+// groups (xstep 1): a one-column block of a 2D image has s = 1 but reads
+// rows a whole image row apart.
 func run(st *stage, y, x []complex128, tw []float64, g *geom, wk *work) {
 	switch st.radix {
 	case 8:
-		switch {
-		case g.s != 1:
-			r8(y, x, tw, g)
-		case g.natural:
+		if g.s == 1 && g.xstep == 1 {
 			r8s1(y, x, tw, g)
-		default:
-			r8s1p(y, x, tw, g)
+		} else {
+			r8(y, x, tw, g)
 		}
 	case 4:
-		switch {
-		case g.s != 1:
-			r4(y, x, tw, g)
-		case g.natural:
+		if g.s == 1 && g.xstep == 1 {
 			r4s1(y, x, tw, g)
-		default:
-			r4s1p(y, x, tw, g)
+		} else {
+			r4(y, x, tw, g)
 		}
 	case 2:
 		r2(y, x, tw, g)
