@@ -102,7 +102,8 @@ func writeFolder(dir string, o *plans.Outcome, a *plans.Analysis, version, cauti
 	if err := os.MkdirAll(img, 0o755); err != nil {
 		return err
 	}
-	if err := out.WriteGrayPNG(filepath.Join(img, "truth.png"), o.Truth, ny, nx, 0, 1); err != nil {
+	lo, hi := grayWindow(o.Truth)
+	if err := out.WriteGrayPNG(filepath.Join(img, "truth.png"), o.Truth, ny, nx, lo, hi); err != nil {
 		return err
 	}
 	errLimit := 0.0
@@ -134,7 +135,7 @@ func writeFolder(dir string, o *plans.Outcome, a *plans.Analysis, version, cauti
 		for ri := range p.Recons {
 			stem := imageName(o, ci, ri)
 			m := o.Images[ci][ri]
-			if err := out.WriteGrayPNG(filepath.Join(img, stem+".png"), m, ny, nx, 0, 1); err != nil {
+			if err := out.WriteGrayPNG(filepath.Join(img, stem+".png"), m, ny, nx, lo, hi); err != nil {
 				return err
 			}
 			diff := make([]float64, len(m))
@@ -146,11 +147,28 @@ func writeFolder(dir string, o *plans.Outcome, a *plans.Analysis, version, cauti
 			}
 		}
 	}
+	if err := writeReport(dir, o, a, version, caution); err != nil {
+		return err
+	}
 	var b strings.Builder
 	printRecommendation(&b, o, a, p.Output)
 	fmt.Fprintf(&b, "\nError maps share one colour scale: ±%.3g (reconstruction − truth).\n", errLimit)
 	fmt.Fprintf(&b, "accelplan %s; plan %s; seed %d; noise σ per sample %.4g.\n\n%s\n", version, p.Source, p.Seed, o.Sigma, caution)
 	return os.WriteFile(filepath.Join(dir, "recommendation.txt"), []byte(b.String()), 0o644)
+}
+
+// grayWindow returns the display window of every image of a run: from the
+// smaller of 0 and the truth's minimum to the truth's maximum, so that
+// reconstructions are shown on the truth's scale.
+func grayWindow(truth []float64) (lo, hi float64) {
+	lo, hi = 0, 0
+	for _, v := range truth {
+		lo, hi = math.Min(lo, v), math.Max(hi, v)
+	}
+	if hi <= lo {
+		hi = lo + 1
+	}
+	return lo, hi
 }
 
 // psfDecibels returns 20·log10(|psf|/peak), floored at −120 dB, for display
