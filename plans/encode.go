@@ -7,6 +7,7 @@ import (
 	"accelplan/priors"
 	"accelplan/simulate"
 	"accelplan/simulate/nufft"
+	"accelplan/simulate/odt"
 )
 
 // encoding is what one worker needs to simulate and reconstruct one
@@ -41,7 +42,11 @@ func (w *workerState) encodingFor(ci int) (*encoding, error) {
 	env := w.env
 	s := env.out.Candidates[ci].Sampling
 	e := &encoding{}
-	if s.Mask != nil {
+	if env.plan.Modality == ModalityODT {
+		if err := w.odtEncoding(ci, e); err != nil {
+			return nil, err
+		}
+	} else if s.Mask != nil {
 		op, err := simulate.NewCartesian(env.ny, env.nx, s.Mask)
 		if err != nil {
 			return nil, err
@@ -63,13 +68,6 @@ func (w *workerState) encodingFor(ci int) (*encoding, error) {
 			return nil, fmt.Errorf("candidate %s: %w", env.out.Candidates[ci].Key(), err)
 		}
 		e.op, e.weights = op, s.Weights
-		// The power iteration is seeded from the candidate, so every
-		// worker finds the same step.
-		l, err := priors.NormalNorm(op, 60, 1e-9, seedFor(env.plan.Seed, "norm|"+env.out.Candidates[ci].Key()))
-		if err != nil {
-			return nil, err
-		}
-		e.step = 1 / (1.01 * l)
 		env.clean.once[ci].Do(func() {
 			// The exact spectrum of the analytic phantom at every
 			// trajectory point: no gridding of the truth is involved.
@@ -80,10 +78,57 @@ func (w *workerState) encodingFor(ci int) (*encoding, error) {
 			env.clean.data[ci] = d
 		})
 	}
+	if e.step == 0 {
+		// The power iteration is seeded from the candidate, so every
+		// worker finds the same step.
+		l, err := priors.NormalNorm(e.op, 60, 1e-9, seedFor(env.plan.Seed, "norm|"+env.out.Candidates[ci].Key()))
+		if err != nil {
+			return nil, err
+		}
+		e.step = 1 / (1.01 * l)
+	}
 	if err := env.clean.err[ci]; err != nil {
 		return nil, err
 	}
 	e.clean = env.clean.data[ci]
 	w.encs[ci] = e
 	return e, nil
+}
+
+// odtEncoding builds the diffraction-tomography operator of candidate ci:
+// the Ewald arcs of its illuminations, the Born data of the specimen drawn
+// from its exact spectrum on those arcs, and gridding weights that undo the
+// physical factor of each sample (w/|F|², so that Eᴴ(w/|F|²·y) grids y/F).
+func (w *workerState) odtEncoding(ci int, e *encoding) error {
+	env := w.env
+	c := env.out.Candidates[ci]
+	pattern := env.plan.Schemes[c.Scheme].Pattern
+	ill, err := odt.Illuminations(env.setup, pattern, c.Sampling.Shots)
+	if err != nil {
+		return err
+	}
+	arcs, err := odt.NewArcs(env.setup, ill)
+	if err != nil {
+		return err
+	}
+	op, err := odt.NewOperator(arcs, nufft.Options{})
+	if err != nil {
+		return err
+	}
+	if len(c.Sampling.Weights) != arcs.Len() {
+		return fmt.Errorf("candidate %s: %d density weights for %d arc samples", c.Key(), len(c.Sampling.Weights), arcs.Len())
+	}
+	e.op = op
+	e.weights = make([]float64, arcs.Len())
+	for j, f := range arcs.Factor {
+		a := real(f)*real(f) + imag(f)*imag(f)
+		if a == 0 {
+			return fmt.Errorf("candidate %s: arc sample %d has no signal factor", c.Key(), j)
+		}
+		e.weights[j] = c.Sampling.Weights[j] / a
+	}
+	env.clean.once[ci].Do(func() {
+		env.clean.data[ci], env.clean.err[ci] = odt.BornData(arcs, env.specimen)
+	})
+	return nil
 }

@@ -72,13 +72,16 @@ func LoadBuiltinNamed(name string) (*Plan, error) {
 
 // Plan is a validated plan file.
 type Plan struct {
-	Title   string `toml:"title"`
-	Seed    uint64 `toml:"seed"`
-	Repeats int    `toml:"repeats"`
-	Output  string `toml:"output"`
+	// Modality is "mri" (the default) or "odt".
+	Modality string `toml:"modality"`
+	Title    string `toml:"title"`
+	Seed     uint64 `toml:"seed"`
+	Repeats  int    `toml:"repeats"`
+	Output   string `toml:"output"`
 
 	Object  Object     `toml:"object"`
 	Scanner Scanner    `toml:"scanner"`
+	Micro   Microscope `toml:"microscope"`
 	Schemes []Scheme   `toml:"scheme"`
 	Recons  []Recon    `toml:"recon"`
 	Accept  Acceptance `toml:"accept"`
@@ -95,6 +98,21 @@ type Object struct {
 	PhaseLines    int     `toml:"phase_lines"`
 	ReadoutPoints int     `toml:"readout_points"`
 	FOVmm         float64 `toml:"fov_mm"`
+	// ODT: an N×N grid over a square FOV in micrometres.
+	Grid  int     `toml:"grid"`
+	FOVum float64 `toml:"fov_um"`
+}
+
+// Microscope says how an optical diffraction tomography instrument spends
+// time and how noisy its field measurements are.
+type Microscope struct {
+	WavelengthUm   float64 `toml:"wavelength_um"`
+	MediumIndex    float64 `toml:"medium_index"`
+	NAIllumination float64 `toml:"na_illumination"`
+	NADetection    float64 `toml:"na_detection"`
+	ExposureMs     float64 `toml:"exposure_ms"`
+	SettlingMs     float64 `toml:"settling_ms"`
+	FieldSNR       float64 `toml:"field_snr"`
 }
 
 // Scanner says how the instrument spends time and how noisy it is.
@@ -123,7 +141,9 @@ type Scheme struct {
 	HalfSpokes          bool    `toml:"half_spokes"`
 	ReadoutOversampling float64 `toml:"readout_oversampling"`
 	// Spiral interleaves.
-	Interleaves       []int   `toml:"interleaves"`
+	Interleaves []int `toml:"interleaves"`
+	// ODT illumination counts.
+	Illuminations     []int   `toml:"illuminations"`
 	EdgeUndersampling float64 `toml:"edge_undersampling"`
 	DenseFraction     float64 `toml:"dense_fraction"`
 }
@@ -140,6 +160,7 @@ type Recon struct {
 	Iterations int       `toml:"iterations"`
 	Lambda     float64   `toml:"lambda"`
 	LambdaLook []float64 `toml:"lambda_search"`
+	Box        []float64 `toml:"box"`
 }
 
 // Acceptance is the quality bar a protocol must meet.
@@ -150,13 +171,19 @@ type Acceptance struct {
 
 // The pattern, method and metric names a plan may use.
 const (
-	PatternUniform = "cartesian-uniform"
-	PatternRandom  = "cartesian-random"
-	PatternRadial  = "radial"
-	PatternSpiral  = "spiral"
+	PatternUniform   = "cartesian-uniform"
+	PatternRandom    = "cartesian-random"
+	PatternRadial    = "radial"
+	PatternSpiral    = "spiral"
+	PatternFan       = "fan"
+	PatternFanGolden = "fan-golden"
+
+	ModalityMRI = "mri"
+	ModalityODT = "odt"
 
 	MethodZeroFilled   = "zero-filled"
 	MethodFISTAWavelet = "fista-wavelet"
+	MethodFISTABox     = "fista-box"
 
 	MetricSSIM  = "ssim"
 	MetricPSNR  = "psnr"
@@ -164,9 +191,9 @@ const (
 )
 
 var (
-	patterns    = []string{PatternUniform, PatternRandom, PatternRadial, PatternSpiral}
+	patterns    = []string{PatternUniform, PatternRandom, PatternRadial, PatternSpiral, PatternFan, PatternFanGolden}
 	spokeOrders = []string{"golden", "tiny-golden", "uniform", "rational-golden"}
-	methods     = []string{MethodZeroFilled, MethodFISTAWavelet}
+	methods     = []string{MethodZeroFilled, MethodFISTAWavelet, MethodFISTABox}
 	metrics     = []string{MetricSSIM, MetricPSNR, MetricNRMSE}
 	phantoms    = []string{"modified-shepp-logan"}
 	wavelets    = []string{"haar", "db2", "db3", "db4", "db5", "db6", "db7", "db8"}
@@ -387,6 +414,19 @@ func (v *validator) plan(p *Plan) {
 	if p.Output == "" {
 		p.Output = "accelplan-out"
 	}
+	switch p.Modality {
+	case "", ModalityMRI:
+		p.Modality = ModalityMRI
+	case ModalityODT:
+		v.odt(p)
+		return
+	default:
+		v.fail("", -1, "modality", fmt.Sprintf("unknown modality %q", p.Modality), "choose mri or odt")
+		return
+	}
+	if p.Micro != (Microscope{}) {
+		v.fail("microscope", -1, "", "a [microscope] table does not apply to modality mri", "remove it, or set modality = \"odt\"")
+	}
 	o := &p.Object
 	if o.Phantom == "" {
 		o.Phantom = phantoms[0]
@@ -435,6 +475,11 @@ func (v *validator) plan(p *Plan) {
 	for i := range p.Recons {
 		v.recon(p, i)
 	}
+	v.accept(p)
+}
+
+// accept checks the acceptance bar.
+func (v *validator) accept(p *Plan) {
 	a := &p.Accept
 	if a.Metric == "" {
 		a.Metric = MetricSSIM
@@ -476,6 +521,13 @@ func (v *validator) scheme(p *Plan, i int) {
 		if o.Label == s.Label {
 			v.fail("scheme", i, "label", fmt.Sprintf("label %q is used by scheme %d too", s.Label, j+1), "give each scheme its own label")
 		}
+	}
+	if s.Pattern == PatternFan || s.Pattern == PatternFanGolden {
+		v.fail("scheme", i, "pattern", fmt.Sprintf("pattern %s is an illumination set for modality odt", s.Pattern), "use a k-space pattern: "+strings.Join(patterns[:4], ", "))
+		return
+	}
+	if s.Illuminations != nil {
+		v.fail("scheme", i, "illuminations", "applies to modality odt only", "remove it")
 	}
 	if s.NonCartesian() {
 		v.nonCartesian(p, i)
@@ -654,6 +706,17 @@ func (v *validator) recon(p *Plan, i int) {
 		if o.Label == r.Label {
 			v.fail("recon", i, "label", fmt.Sprintf("label %q is used by recon %d too", r.Label, j+1), "give each recon its own label")
 		}
+	}
+	if r.Method == MethodFISTABox && p.Modality != ModalityODT {
+		v.fail("recon", i, "method", "fista-box constrains a refractive-index contrast and applies to modality odt only", "choose one of: zero-filled, fista-wavelet")
+		return
+	}
+	if r.Method != MethodFISTABox && r.Box != nil {
+		v.fail("recon", i, "box", "applies to method fista-box only", "remove it")
+	}
+	if r.Method == MethodFISTABox {
+		v.boxRecon(p, i)
+		return
 	}
 	if r.Method == MethodZeroFilled {
 		for _, k := range []struct {

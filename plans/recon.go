@@ -4,6 +4,7 @@ import (
 	"fmt"
 
 	"accelplan/priors"
+	"accelplan/simulate/odt"
 )
 
 // solver holds one worker's reconstruction state for one plan method: the
@@ -29,6 +30,12 @@ func (w *workerState) solverFor(ri int) (*solver, error) {
 			return nil, fmt.Errorf("recon %q: %w", rc.Label, err)
 		}
 		s.prior = p
+	case MethodFISTABox:
+		b, err := odt.BoxProjection(rc.Box[0], rc.Box[1])
+		if err != nil {
+			return nil, fmt.Errorf("recon %q: %w", rc.Label, err)
+		}
+		s.prior = b
 	default:
 		return nil, fmt.Errorf("recon %q: method %q has no solver", rc.Label, rc.Method)
 	}
@@ -66,6 +73,15 @@ func (w *workerState) reconstruct(ri int, enc *encoding, y []complex128, lambda 
 		return s.zf, 0, nil
 	case MethodFISTAWavelet:
 		x, info, err := priors.FISTA(enc.op, y, s.prior, priors.RelativeLambda(lambda, s.zf),
+			priors.FISTAOptions{MaxIter: s.rc.Iterations, Step: enc.step, X0: s.zf})
+		if err != nil {
+			return nil, 0, fmt.Errorf("recon %q: %w", s.rc.Label, err)
+		}
+		return x, info.Iterations, nil
+	case MethodFISTABox:
+		// Projected gradient with FISTA momentum: the box's proximal map is
+		// the projection whatever the weight, so λ is a formality.
+		x, info, err := priors.FISTA(enc.op, y, s.prior, 1,
 			priors.FISTAOptions{MaxIter: s.rc.Iterations, Step: enc.step, X0: s.zf})
 		if err != nil {
 			return nil, 0, fmt.Errorf("recon %q: %w", s.rc.Label, err)

@@ -13,6 +13,7 @@ import (
 	"accelplan/priors"
 	"accelplan/simulate"
 	"accelplan/simulate/nufft"
+	"accelplan/simulate/odt"
 	"accelplan/simulate/quality"
 	"accelplan/trajectories"
 )
@@ -151,13 +152,18 @@ func Candidates(p *Plan) ([]Candidate, error) {
 				c.Sampling, err = radialSampling(p, s, r)
 			case PatternSpiral:
 				c.Sampling, err = spiralSampling(p, s, int(r))
+			case PatternFan, PatternFanGolden:
+				c.Sampling, err = odtCandidate(p, s, int(r))
 			default:
 				err = fmt.Errorf("pattern %q has no sampling yet", s.Pattern)
 			}
 			if err != nil {
 				key, what := "accelerations", fmt.Sprintf("R = %g", r)
-				if s.Pattern == PatternSpiral {
+				switch s.Pattern {
+				case PatternSpiral:
 					key, what = "interleaves", fmt.Sprintf("%d interleaves", int(r))
+				case PatternFan, PatternFanGolden:
+					key, what = "illuminations", fmt.Sprintf("%d illuminations", int(r))
 				}
 				return nil, &Error{File: p.Source, Line: findKeyIn(string(p.Text), "scheme", si, key),
 					Key: fmt.Sprintf("scheme[%d].%s", si+1, key), Msg: fmt.Sprintf("%s: %v", what, err)}
@@ -262,17 +268,11 @@ func Run(ctx context.Context, p *Plan, opt Options) (*Outcome, error) {
 		return nil, err
 	}
 	ny, nx := p.Object.PhaseLines, p.Object.ReadoutPoints
-	ph := simulate.ModifiedSheppLogan()
 	o := &Outcome{Plan: p, Candidates: cands, Started: start}
-	o.Truth = ph.Rasterize(nx, ny)
-	o.Support = ph.Support(nx, ny)
-	o.Sigma, err = simulate.NoiseSigma(o.Truth, o.Support, p.Scanner.ReferenceSNR)
-	if err != nil {
+	env := &runEnv{plan: p, out: o, clean: newCleanData(len(cands)), ny: ny, nx: nx, journal: opt.Journal}
+	if err := env.setScene(); err != nil {
 		return nil, err
 	}
-	// The noiseless spectrum on the whole centred grid, drawn from the
-	// analytic phantom once and shared read-only by every worker.
-	spectrum := simulate.CartesianSpectrum(ph, nx, ny)
 
 	nr := len(p.Recons)
 	o.Tunings = make([][]Tuning, len(cands))
@@ -340,7 +340,6 @@ func Run(ctx context.Context, p *Plan, opt Options) (*Outcome, error) {
 		workers = runtime.GOMAXPROCS(0)
 	}
 	o.Workers = workers
-	env := &runEnv{plan: p, out: o, phantom: ph, spectrum: spectrum, clean: newCleanData(len(cands)), ny: ny, nx: nx, journal: opt.Journal}
 	for _, stage := range [][]job{tune, score} {
 		if err := pool(ctx, workers, stage, env, tick); err != nil {
 			return nil, err
@@ -352,7 +351,9 @@ func Run(ctx context.Context, p *Plan, opt Options) (*Outcome, error) {
 	return o, nil
 }
 
-func needsTuning(r Recon) bool { return r.Method != MethodZeroFilled && r.Lambda == 0 }
+func needsTuning(r Recon) bool {
+	return r.Method != MethodZeroFilled && r.Method != MethodFISTABox && r.Lambda == 0
+}
 
 // pool runs jobs on workers goroutines, each with its own scratch. Results
 // land in slots fixed by the job, so the order of completion does not matter.
@@ -406,13 +407,65 @@ feed:
 
 // runEnv is what every worker reads; only the slots a job owns are written.
 type runEnv struct {
-	plan     *Plan
-	out      *Outcome
+	plan    *Plan
+	out     *Outcome
+	clean   *cleanData
+	ny, nx  int
+	journal *Journal
+	// The scene: what is imaged and how quality is measured.
+	dataRange float64 // L of PSNR and SSIM: max − min of the truth
+	realPart  bool    // score the real part (an index contrast) instead of the magnitude
+	// MRI: the analytic phantom and its spectrum on the centred grid.
 	phantom  simulate.Phantom
-	spectrum []complex128 // the phantom's spectrum on the centred Cartesian grid
-	clean    *cleanData
-	ny, nx   int
-	journal  *Journal
+	spectrum []complex128
+	// ODT: the instrument and the specimen.
+	setup    odt.Setup
+	specimen odt.Specimen
+}
+
+// setScene fills the truth, support and noise level of the run and what the
+// encodings need, for the plan's modality.
+func (env *runEnv) setScene() error {
+	p, o := env.plan, env.out
+	ny, nx := env.ny, env.nx
+	var err error
+	switch p.Modality {
+	case ModalityODT:
+		env.setup, env.specimen = odtSetup(p), odtSpecimen(p.Object.Phantom)
+		contrast, err := env.specimen.Contrast(p.Object.FOVum)
+		if err != nil {
+			return err
+		}
+		// The truth is the index step δn; the data are drawn from the Born
+		// contrast (n² − n_m²)/(2n_m), so the score includes the
+		// linearisation error, as it would for a real specimen.
+		o.Truth = contrast.Rasterize(nx, ny)
+		o.Support = contrast.Support(nx, ny)
+		if o.Sigma, err = odt.NoiseSigma(p.Micro.FieldSNR); err != nil {
+			return err
+		}
+		env.realPart = true
+	default:
+		ph := simulate.ModifiedSheppLogan()
+		env.phantom = ph
+		o.Truth = ph.Rasterize(nx, ny)
+		o.Support = ph.Support(nx, ny)
+		if o.Sigma, err = simulate.NoiseSigma(o.Truth, o.Support, p.Scanner.ReferenceSNR); err != nil {
+			return err
+		}
+		// The noiseless spectrum on the whole centred grid, drawn from the
+		// analytic phantom once and shared read-only by every worker.
+		env.spectrum = simulate.CartesianSpectrum(ph, nx, ny)
+	}
+	lo, hi := math.Inf(1), math.Inf(-1)
+	for _, v := range o.Truth {
+		lo, hi = math.Min(lo, v), math.Max(hi, v)
+	}
+	env.dataRange = hi - lo
+	if !(env.dataRange > 0) {
+		return fmt.Errorf("the truth image is flat; nothing to measure")
+	}
+	return nil
 }
 
 // workerState holds one worker's operators and buffers, built once per
@@ -426,8 +479,7 @@ type workerState struct {
 }
 
 func newWorkerState(env *runEnv) (*workerState, error) {
-	const dataRange = 1 // the modified Shepp-Logan phantom spans [0, 1]
-	ssim, err := quality.NewSSIMPlan(env.ny, env.nx, dataRange)
+	ssim, err := quality.NewSSIMPlan(env.ny, env.nx, env.dataRange)
 	if err != nil {
 		return nil, err
 	}
@@ -466,8 +518,11 @@ func (w *workerState) do(j job) error {
 		t := w.env.out.Tunings[j.cand][j.recon]
 		lambda, rule = t.Lambda, t.Rule
 	}
-	if rc.Method == MethodZeroFilled {
+	switch rc.Method {
+	case MethodZeroFilled:
 		lambda, rule = 0, "none"
+	case MethodFISTABox:
+		lambda, rule = 0, "none (a hard box constraint)"
 	}
 	t0 := time.Now()
 	img, iters, err := w.reconstruct(j.recon, enc, y, lambda)
@@ -475,7 +530,7 @@ func (w *workerState) do(j job) error {
 		return err
 	}
 	sec := time.Since(t0).Seconds()
-	simulate.Magnitude(w.mag, img)
+	w.project(img)
 	r := Result{Candidate: j.cand, Recon: j.recon, Repeat: j.repeat, NoiseSeed: seed,
 		Lambda: lambda, LambdaRule: rule, Iterations: iters, Seconds: sec}
 	if r.NRMSE, r.PSNR, r.SSIM, err = w.score(w.mag); err != nil {
@@ -516,13 +571,24 @@ func restoreResult(o *Outcome, jr *Journal, j job, n int) bool {
 }
 
 // score returns NRMSE, PSNR and SSIM of a magnitude image inside the support.
+// project writes the real image that is scored into w.mag: the magnitude,
+// or the real part for an index contrast.
+func (w *workerState) project(img []complex128) {
+	if w.env.realPart {
+		for i, v := range img {
+			w.mag[i] = real(v)
+		}
+		return
+	}
+	simulate.Magnitude(w.mag, img)
+}
+
 // SSIM is averaged over the support pixels (AverageAll), the others over the
 // same pixels.
 func (w *workerState) score(mag []float64) (nrmse, psnr, ssim float64, err error) {
 	o := w.env.out
-	const dataRange = 1 // the modified Shepp-Logan phantom spans [0, 1]
 	nrmse = quality.NRMSE(mag, o.Truth, o.Support)
-	psnr = quality.PSNR(mag, o.Truth, o.Support, dataRange)
+	psnr = quality.PSNR(mag, o.Truth, o.Support, w.env.dataRange)
 	ssim, err = w.ssim.Mean(mag, o.Truth, o.Support, quality.AverageAll)
 	return
 }
@@ -556,7 +622,7 @@ func (w *workerState) tune(j job, rc Recon) error {
 			}
 			return math.Inf(1)
 		}
-		simulate.Magnitude(w.mag, img)
+		w.project(img)
 		n, ps, ss, err := w.score(w.mag)
 		if err != nil && firstErr == nil {
 			firstErr = err

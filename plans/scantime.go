@@ -27,6 +27,9 @@ func ShotTime(trMs float64, shots, averages int) float64 {
 // ScanTime returns the scan time of shots of scheme s under p's scanner:
 // Cartesian2DTime for line sampling, ShotTime for radial and spiral.
 func ScanTime(p *Plan, s Scheme, shots int) float64 {
+	if p.Modality == ModalityODT {
+		return ODTTime(p.Micro.ExposureMs, p.Micro.SettlingMs, shots)
+	}
 	if s.NonCartesian() {
 		return ShotTime(p.Scanner.TRms, shots, p.Scanner.Averages)
 	}
@@ -40,6 +43,8 @@ func ShotName(s Scheme) string {
 		return "spokes"
 	case PatternSpiral:
 		return "interleaves"
+	case PatternFan, PatternFanGolden:
+		return "illuminations"
 	}
 	return "lines"
 }
