@@ -78,6 +78,13 @@ func runOrMerge(ctx context.Context, name string, args []string, stdout, stderr 
 			return err
 		}
 	}
+	need, err := plans.MemoryNeeded(p, cmp.Or(*workers, runtime.GOMAXPROCS(0)))
+	if err != nil {
+		return err
+	}
+	if err := plans.CheckMemory(p, need, plans.AvailableMemory()); err != nil {
+		return err
+	}
 	sharded := opt.Shards > 1
 	var stage *out.Stage
 	if !sharded {
@@ -222,11 +229,22 @@ func cmdNew(args []string, stdout, stderr io.Writer) error {
 	return nil
 }
 
-func cmdCheck(args []string, stdout io.Writer) error {
-	if len(args) != 1 {
-		return fmt.Errorf("usage: accelplan check PLAN.toml")
+func cmdCheck(ctx context.Context, args []string, stdout, stderr io.Writer) error {
+	fs := newFlags("check", stderr)
+	workers := fs.Int("workers", 0, "worker goroutines the estimate is for (0: one per core)")
+	quick := fs.Bool("no-calibration", false, "skip the short calibration run (no time estimate)")
+	fs.Usage = func() {
+		fmt.Fprintln(stderr, "usage: accelplan check [-workers N] [-no-calibration] PLAN.toml")
+		fs.PrintDefaults()
 	}
-	p, err := plans.Load(args[0])
+	if err := fs.Parse(args); err != nil {
+		return errUsage
+	}
+	if fs.NArg() != 1 {
+		fs.Usage()
+		return errUsage
+	}
+	p, err := plans.Load(fs.Arg(0))
 	if err != nil {
 		return err
 	}
@@ -234,7 +252,11 @@ func cmdCheck(args []string, stdout io.Writer) error {
 	if err != nil {
 		return err
 	}
-	fmt.Fprintf(stdout, "%s: valid plan %q\n", args[0], p.Title)
+	n := *workers
+	if n <= 0 {
+		n = runtime.GOMAXPROCS(0)
+	}
+	fmt.Fprintf(stdout, "%s: valid plan %q (%s)\n", fs.Arg(0), p.Title, p.Modality)
 	tw := tabwriter.NewWriter(stdout, 2, 4, 2, ' ', 0)
 	fmt.Fprintln(tw, "scheme\tasked R\tachieved R\tshots\tscan time")
 	for _, c := range cands {
@@ -243,12 +265,30 @@ func cmdCheck(args []string, stdout io.Writer) error {
 	tw.Flush()
 	tunes := 0
 	for _, r := range p.Recons {
-		if r.Method != plans.MethodZeroFilled && r.Lambda == 0 {
+		if r.Method != plans.MethodZeroFilled && r.Method != plans.MethodFISTABox && r.Lambda == 0 {
 			tunes++
 		}
 	}
 	fmt.Fprintf(stdout, "%d candidates × %d methods × %d scored noise draws = %d reconstructions, plus %d λ searches\n",
 		len(cands), len(p.Recons), p.Repeats, len(cands)*len(p.Recons)*p.Repeats, len(cands)*tunes)
+	need, err := plans.MemoryNeeded(p, n)
+	if err != nil {
+		return err
+	}
+	avail := plans.AvailableMemory()
+	fmt.Fprintf(stdout, "memory: about %s on %d workers (%s available)\n", plans.FormatBytes(need), n, plans.FormatBytes(avail))
+	if err := plans.CheckMemory(p, need, avail); err != nil {
+		return err
+	}
+	if *quick {
+		return nil
+	}
+	e, err := plans.EstimatePlan(ctx, p, n)
+	if err != nil {
+		return err
+	}
+	fmt.Fprintf(stdout, "time: about %s on %d workers (%d reconstructions, λ-search evaluations included; timed on the smallest and largest candidate of each scheme)\n",
+		duration(e.Seconds), n, e.Recons)
 	return nil
 }
 

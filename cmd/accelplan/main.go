@@ -49,8 +49,9 @@ Commands:
         jobs are journaled: an interrupted run resumes when run again
   accelplan new [FILE.toml]
         write an annotated starter plan (to standard output without FILE)
-  accelplan check PLAN.toml
-        validate a plan and list the candidates it would simulate
+  accelplan check [-workers N] PLAN.toml
+        validate a plan, list its candidates, and estimate memory and time
+        from a short calibration run
   accelplan merge [-out DIR] PLAN.toml
         write the results of a sweep whose shards ran separately
   accelplan jobscript [-shards N] PLAN.toml
@@ -92,7 +93,7 @@ func run(args []string, stdout, stderr io.Writer) int {
 	case "new":
 		err = cmdNew(args[1:], stdout, stderr)
 	case "check":
-		err = cmdCheck(args[1:], stdout)
+		err = cmdCheck(ctx, args[1:], stdout, stderr)
 	case "version":
 		fmt.Fprintln(stdout, "accelplan", version)
 	case "help", "-h", "-help", "--help":
