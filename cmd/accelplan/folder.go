@@ -153,7 +153,7 @@ func writeFolder(dir string, o *plans.Outcome, a *plans.Analysis, version, cauti
 	var b strings.Builder
 	printRecommendation(&b, o, a, p.Output)
 	fmt.Fprintf(&b, "\nError maps share one colour scale: ±%.3g (reconstruction − truth).\n", errLimit)
-	fmt.Fprintf(&b, "accelplan %s; plan %s; seed %d; noise σ per sample %.4g.\n\n%s\n", version, p.Source, p.Seed, o.Sigma, caution)
+	fmt.Fprintf(&b, "accelplan %s; plan %s; seed %d; noise σ per sample %.4g.\n\n%s\n", version, planName(p), p.Seed, o.Sigma, caution)
 	return os.WriteFile(filepath.Join(dir, "recommendation.txt"), []byte(b.String()), 0o644)
 }
 
@@ -259,7 +259,7 @@ type resultRow struct {
 
 func writeJSON(dir string, o *plans.Outcome, a *plans.Analysis, version string) error {
 	p := o.Plan
-	m := manifest{Tool: "accelplan", Version: version, GoVersion: runtime.Version(), Plan: p.Source,
+	m := manifest{Tool: "accelplan", Version: version, GoVersion: runtime.Version(), Plan: planName(p),
 		PlanSHA256: fmt.Sprintf("%x", sha256.Sum256(p.Text)), Seed: p.Seed, NoiseSigma: o.Sigma,
 		Started: o.Started.UTC().Format(time.RFC3339), Seconds: o.Elapsed.Seconds(), Workers: o.Workers}
 	m.Candidates = make([]struct {
@@ -303,3 +303,9 @@ func writeJSON(dir string, o *plans.Outcome, a *plans.Analysis, version string) 
 	}
 	return out.WriteJSON(filepath.Join(dir, "results.json"), rows)
 }
+
+// planName is how a results folder names its plan: the file's base name (or
+// the built-in plan's name), so that the folder does not depend on the path
+// the plan was given by; plan.toml in the folder and the manifest's SHA-256
+// identify its content.
+func planName(p *plans.Plan) string { return filepath.Base(p.Source) }

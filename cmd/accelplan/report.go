@@ -88,9 +88,28 @@ func patternName(s plans.Scheme) string {
 		return "radial, " + order
 	case plans.PatternSpiral:
 		return "spiral interleaves"
+	case "fan":
+		return "illumination angles, evenly spaced fan"
+	case "fan-golden":
+		return "illumination angles in golden-ratio order"
 	}
 	return s.Pattern
 }
+
+// gridded reports whether scheme si of o samples off the Cartesian grid
+// (its samplings carry sample positions rather than a mask), so that the
+// zero-filled adjoint is a gridding rather than an inverse FFT.
+func gridded(o *plans.Outcome, si int) bool {
+	for _, c := range o.Candidates {
+		if c.Scheme == si {
+			return c.Sampling.Mask == nil
+		}
+	}
+	return o.Plan.Schemes[si].NonCartesian()
+}
+
+// methodFISTABox is the plan's name of FISTA with a box constraint.
+const methodFISTABox = "fista-box"
 
 // methodShort is the published name of a reconstruction method in a few
 // words, for tables, headings and the stepper; the plan's own label is put
@@ -105,6 +124,8 @@ func methodShort(rc plans.Recon, nonCartesian bool) string {
 		}
 	case plans.MethodFISTAWavelet:
 		name = "FISTA, wavelet-ℓ1 (" + rc.Wavelet + ")"
+	case methodFISTABox:
+		name = "FISTA, box constraint"
 	default:
 		name = rc.Method
 	}
@@ -125,6 +146,8 @@ func methodName(rc plans.Recon, nonCartesian bool) string {
 	case plans.MethodFISTAWavelet:
 		name = fmt.Sprintf("FISTA (Beck, Teboulle, SIAM J Imaging Sci 2009) with a wavelet-ℓ1 prior, %s (Daubechies 1992), %d levels, %d iterations",
 			rc.Wavelet, rc.Levels, rc.Iterations)
+	case methodFISTABox:
+		name = fmt.Sprintf("FISTA (Beck, Teboulle, SIAM J Imaging Sci 2009) with projection onto a box constraint, %d iterations", rc.Iterations)
 	default:
 		name = rc.Method
 	}
@@ -149,14 +172,18 @@ func lambdaText(o *plans.Outcome, a *plans.Analysis, ci, ri int, row plans.Row) 
 	rc := o.Plan.Recons[ri]
 	t := o.Tunings[ci][ri]
 	switch {
-	case t.Rule != "":
+	case t.Rule != "" && len(rc.LambdaLook) == 2:
 		return fmt.Sprintf("λ = %s (relative to the largest zero-filled magnitude), tuned by golden-section search over log λ in [%g, %g] "+
 			"with %d reconstructions of a separate calibration noise draw (seed %d) that is never scored, maximising %s "+
 			"(%s %s on the calibration draw)",
 			fmtNum(t.Lambda), rc.LambdaLook[0], rc.LambdaLook[1], t.Evals, t.NoiseSeed,
 			metricTitle(a.Metric), metricTitle(a.Metric), fmtNum(t.Score))
+	case t.Rule != "":
+		return fmt.Sprintf("λ = %s (relative to the largest zero-filled magnitude), %s", fmtNum(t.Lambda), t.Rule)
 	case rc.Method == plans.MethodZeroFilled:
 		return "no λ: the zero-filled reconstruction has no regularisation weight"
+	case rc.Method == methodFISTABox:
+		return "no λ: the box constraint has no regularisation weight"
 	default:
 		return fmt.Sprintf("λ = %s (relative to the largest zero-filled magnitude), fixed in the plan", fmtNum(row.Lambda))
 	}
@@ -166,7 +193,7 @@ func lambdaText(o *plans.Outcome, a *plans.Analysis, ci, ri int, row plans.Row) 
 func lambdaBrief(o *plans.Outcome, ci, ri int, row plans.Row) string {
 	switch rule := lambdaShort(o, ci, ri); rule {
 	case "none":
-		return "no λ (zero-filled)"
+		return "no λ"
 	default:
 		return "λ = " + fmtNum(row.Lambda) + ", " + rule
 	}
@@ -177,7 +204,7 @@ func lambdaShort(o *plans.Outcome, ci, ri int) string {
 	switch {
 	case o.Tunings[ci][ri].Rule != "":
 		return "tuned on a calibration draw"
-	case o.Plan.Recons[ri].Method == plans.MethodZeroFilled:
+	case o.Plan.Recons[ri].Method == plans.MethodZeroFilled, o.Plan.Recons[ri].Method == methodFISTABox:
 		return "none"
 	}
 	return "fixed in the plan"
@@ -186,6 +213,43 @@ func lambdaShort(o *plans.Outcome, ci, ri int) string {
 // protocolText names a row's protocol in words.
 func protocolText(r plans.Row) string {
 	return fmt.Sprintf("%s, R = %s (%d of %d %s)", r.Scheme, fmtR(r.R), r.Shots, r.FullShots, r.ShotKind)
+}
+
+// asksR reports whether a plan's value for the row's scheme is an
+// acceleration factor (lines, spokes) rather than a count of shots
+// (spiral interleaves, illuminations).
+func asksR(r plans.Row) bool { return r.ShotKind == "lines" || r.ShotKind == "spokes" }
+
+// askedR is the table's "asked R" cell: the R the plan asked for, or a
+// dash where the plan asked for a shot count.
+func askedR(r plans.Row) string {
+	if asksR(r) {
+		return fmtR(r.AskedR)
+	}
+	return "—"
+}
+
+// candidateLabel names one candidate section: achieved R, what the plan
+// asked for where that differs, and the shots acquired.
+func candidateLabel(r plans.Row) string {
+	asked := ""
+	if asksR(r) && fmtR(r.AskedR) != fmtR(r.R) {
+		asked = " (asked " + fmtR(r.AskedR) + ")"
+	}
+	return fmt.Sprintf("R = %s%s · %d of %d %s", fmtR(r.R), asked, r.Shots, r.FullShots, r.ShotKind)
+}
+
+// scanTimeText prints a scan time for the table: milliseconds below a
+// second (optical acquisitions), seconds with one decimal below a minute,
+// m:ss above.
+func scanTimeText(s float64) string {
+	switch {
+	case s < 1:
+		return strconv.FormatFloat(s*1000, 'f', 1, 64) + " ms"
+	case s < 59.95:
+		return strconv.FormatFloat(s, 'f', 1, 64) + " s"
+	}
+	return out.FormatMinSec(s)
 }
 
 // fmtR prints an acceleration factor with at most two decimals.
@@ -302,10 +366,9 @@ func reportTable(o *plans.Outcome, a *plans.Analysis) out.ReportTable {
 	for _, cv := range a.Curves {
 		for _, i := range cv.Rows {
 			r := a.Rows[i]
-			sch := o.Plan.Schemes[o.Candidates[r.Candidate].Scheme]
-			cells := []string{r.Scheme, methodShort(o.Plan.Recons[r.Recon], sch.NonCartesian()), fmtR(r.AskedR), fmtR(r.R),
+			cells := []string{r.Scheme, methodShort(o.Plan.Recons[r.Recon], gridded(o, o.Candidates[r.Candidate].Scheme)), askedR(r), fmtR(r.R),
 				fmt.Sprintf("%d of %d %s", r.Shots, r.FullShots, r.ShotKind),
-				out.FormatMinSec(r.ScanTime), fmtNum(o.Candidates[r.Candidate].SideLobe)}
+				scanTimeText(r.ScanTime), fmtNum(o.Candidates[r.Candidate].SideLobe)}
 			for _, m := range reportMetrics {
 				s := r.Metric(m)
 				cells = append(cells, fmtNum(s.Mean)+" ± "+fmtSD(s.Std), fmtNum(r.Bound(m)))
@@ -354,37 +417,30 @@ type candidatePictures struct {
 	caption   string
 }
 
-func pictures(c plans.Candidate, ny, nx int) (candidatePictures, error) {
+func pictures(c plans.Candidate, ny, nx int) candidatePictures {
 	var cp candidatePictures
-	pic, rows, cols, err := c.Sampling.Picture()
-	if err != nil {
-		return cp, err
-	}
-	if cp.mask, err = grayPNG(pic, rows, cols, 0, 1); err != nil {
-		return cp, err
-	}
 	cp.caption = "sampling mask"
 	if c.Sampling.Mask == nil {
 		cp.caption = "trajectory (samples at the nearest grid point)"
 	}
-	if len(c.PSF) == ny*nx {
-		if cp.psf, err = grayPNG(psfDecibels(c.PSF), ny, nx, -40, 0); err != nil {
-			return cp, err
-		}
+	// A sampling that cannot be drawn leaves its picture "not available"
+	// rather than failing the run whose results are already computed.
+	if pic, rows, cols, err := c.Sampling.Picture(); err == nil {
+		cp.mask, _ = grayPNG(pic, rows, cols, 0, 1)
 	}
-	return cp, nil
+	if len(c.PSF) == ny*nx {
+		cp.psf, _ = grayPNG(psfDecibels(c.PSF), ny, nx, -40, 0)
+	}
+	return cp
 }
 
 // reportCandidates builds one report section per candidate × method.
-func reportCandidates(o *plans.Outcome, a *plans.Analysis, limit float64) ([]out.ReportCandidate, error) {
+func reportCandidates(o *plans.Outcome, a *plans.Analysis, limit, lo, hi float64) ([]out.ReportCandidate, error) {
 	p := o.Plan
 	ny, nx := p.Object.PhaseLines, p.Object.ReadoutPoints
 	pics := make([]candidatePictures, len(o.Candidates))
 	for ci, c := range o.Candidates {
-		var err error
-		if pics[ci], err = pictures(c, ny, nx); err != nil {
-			return nil, fmt.Errorf("report pictures of %s R = %g: %w", p.Schemes[c.Scheme].Label, c.AskedR, err)
-		}
+		pics[ci] = pictures(c, ny, nx)
 	}
 	var cands []out.ReportCandidate
 	diff := make([]float64, ny*nx)
@@ -392,8 +448,8 @@ func reportCandidates(o *plans.Outcome, a *plans.Analysis, limit float64) ([]out
 		c := o.Candidates[r.Candidate]
 		s := p.Schemes[c.Scheme]
 		rc := out.ReportCandidate{
-			Label:  fmt.Sprintf("R = %s (asked %g) · %d of %d %s", fmtR(r.R), r.AskedR, r.Shots, r.FullShots, r.ShotKind),
-			Scheme: s.Label, Method: methodShort(p.Recons[r.Recon], s.NonCartesian()),
+			Label:  candidateLabel(r),
+			Scheme: s.Label, Method: methodShort(p.Recons[r.Recon], gridded(o, c.Scheme)),
 			R: r.R, Lines: linesOf(r), ScanTime: r.ScanTime,
 			Lambda: lambdaText(o, a, r.Candidate, r.Recon, r),
 			Meets:  r.Meets, Pick: i == a.Best,
@@ -407,10 +463,10 @@ func reportCandidates(o *plans.Outcome, a *plans.Analysis, limit float64) ([]out
 			rc.Values = append(rc.Values, out.ReportValue{Metric: metricTitle(m), Mean: sm.Mean, Std: sm.Std, Bound: r.Bound(m), N: sm.N})
 		}
 		note := fmt.Sprintf("Reconstruction: %s. Sampling: %s. PSF shown as 20·log10(|PSF|/peak) on a −40 … 0 dB grey scale; side-lobe-to-peak ratio %s (Lustig, Donoho, Pauly, MRM 2007).",
-			methodName(p.Recons[r.Recon], s.NonCartesian()), patternName(s), fmtNum(c.SideLobe))
+			methodName(p.Recons[r.Recon], gridded(o, c.Scheme)), patternName(s), fmtNum(c.SideLobe))
 		if img := o.Images[r.Candidate][r.Recon]; len(img) == ny*nx {
 			var err error
-			if rc.Recon, err = grayPNG(img, ny, nx, 0, 1); err != nil {
+			if rc.Recon, err = grayPNG(img, ny, nx, lo, hi); err != nil {
 				return nil, fmt.Errorf("report reconstruction of %s: %w", rc.Label, err)
 			}
 			for k := range img {
@@ -451,9 +507,9 @@ func reportFacts(o *plans.Outcome, version, generated string) []out.ReportFact {
 	// adjoint is an inverse FFT on Cartesian schemes and gridding on the
 	// others.
 	var cart, nonCart bool
-	for _, s := range p.Schemes {
-		cart = cart || !s.NonCartesian()
-		nonCart = nonCart || s.NonCartesian()
+	for si := range p.Schemes {
+		g := gridded(o, si)
+		cart, nonCart = cart || !g, nonCart || g
 	}
 	var methods []string
 	for _, rc := range p.Recons {
@@ -468,22 +524,35 @@ func reportFacts(o *plans.Outcome, version, generated string) []out.ReportFact {
 		}
 	}
 	sc := p.Scanner
-	return []out.ReportFact{
-		{Name: "plan file", Value: p.Source},
+	sigma := fmtNum(o.Sigma)
+	if sc.ReferenceSNR > 0 {
+		sigma += fmt.Sprintf(" (reference SNR %g of the fully sampled scan)", sc.ReferenceSNR)
+	}
+	object := fmt.Sprintf("%s phantom, analytic spectrum, %d × %d grid", p.Object.Phantom, p.Object.PhaseLines, p.Object.ReadoutPoints)
+	if p.Object.FOVmm > 0 {
+		object += fmt.Sprintf(", FOV %g mm", p.Object.FOVmm)
+	}
+	facts := []out.ReportFact{
+		{Name: "plan file", Value: planName(p)},
 		{Name: "plan SHA-256", Value: groupHex(fmt.Sprintf("%x", sha256.Sum256(p.Text)))},
 		{Name: "plan title", Value: p.Title},
 		{Name: "seed", Value: strconv.FormatUint(p.Seed, 10)},
-		{Name: "noise σ per k-space sample", Value: fmtNum(o.Sigma) + fmt.Sprintf(" (reference SNR %g of the fully sampled scan)", sc.ReferenceSNR)},
+		{Name: "noise σ per sample", Value: sigma},
 		{Name: "noise draws", Value: draws},
-		{Name: "object", Value: fmt.Sprintf("%s phantom, analytic spectrum, %d × %d grid, FOV %g mm", p.Object.Phantom, p.Object.PhaseLines, p.Object.ReadoutPoints, p.Object.FOVmm)},
-		{Name: "timing", Value: fmt.Sprintf("TR %g ms, echo train length %d, averages %d", sc.TRms, max(sc.EchoTrain, 1), max(sc.Averages, 1))},
-		{Name: "methods", Value: strings.Join(methods, "; ")},
-		{Name: "quality metrics", Value: "SSIM (Wang et al., IEEE TIP 2004), PSNR and NRMSE, inside the object support; confidence bounds by Student's t"},
-		{Name: "workers", Value: strconv.Itoa(o.Workers) + " (results do not depend on it)"},
-		{Name: "run time", Value: fmt.Sprintf("%.1f s", o.Elapsed.Seconds())},
-		{Name: "tool version", Value: "accelplan " + version + ", " + runtime.Version()},
-		{Name: "generated", Value: generated},
+		{Name: "object", Value: object},
 	}
+	if sc.TRms > 0 {
+		facts = append(facts, out.ReportFact{Name: "timing",
+			Value: fmt.Sprintf("TR %g ms, echo train length %d, averages %d", sc.TRms, max(sc.EchoTrain, 1), max(sc.Averages, 1))})
+	}
+	return append(facts,
+		out.ReportFact{Name: "methods", Value: strings.Join(methods, "; ")},
+		out.ReportFact{Name: "quality metrics", Value: "SSIM (Wang et al., IEEE TIP 2004), PSNR and NRMSE, inside the object support; confidence bounds by Student's t"},
+		out.ReportFact{Name: "workers", Value: strconv.Itoa(o.Workers) + " (results do not depend on it)"},
+		out.ReportFact{Name: "run time", Value: fmt.Sprintf("%.1f s", o.Elapsed.Seconds())},
+		out.ReportFact{Name: "tool version", Value: "accelplan " + version + ", " + runtime.Version()},
+		out.ReportFact{Name: "generated", Value: generated},
+	)
 }
 
 // buildReport fills the report of a finished run.
@@ -493,32 +562,34 @@ func buildReport(o *plans.Outcome, a *plans.Analysis, version, caution string) (
 	generated := o.Started.Add(o.Elapsed).UTC().Format("2006-01-02 15:04:05 UTC")
 	r := out.Report{
 		Title: p.Title, Caution: strings.TrimPrefix(strings.Join(strings.Fields(caution), " "), "CAUTION: "),
-		Version: version, PlanName: p.Source, GeneratedAt: generated,
+		Version: version, PlanName: planName(p), GeneratedAt: generated,
 		Facts:  reportFacts(o, version, generated),
 		Metric: metricTitle(a.Metric), Threshold: a.Threshold, HigherIsBetter: plans.HigherIsBetter(a.Metric),
 		ReferenceTime: a.ReferenceTime, ReferenceLabel: a.ReferenceLabel,
 		ErrorNote: "reconstruction − truth, magnitude images of the first scored draw",
-		GrayLo:    0, GrayHi: 1,
 	}
+	// Reconstructions and truth share the truth's grey window, as the
+	// PNGs of the results folder do.
+	r.GrayLo, r.GrayHi = grayWindow(o.Truth)
 	scheme := func(i int) string { return p.Schemes[o.Candidates[a.Rows[i].Candidate].Scheme].Label }
 	if a.Best >= 0 {
-		s := p.Schemes[o.Candidates[a.Rows[a.Best].Candidate].Scheme]
-		r.Recommendation = reportPick(o, a, a.Best, scheme(a.Best), methodName(p.Recons[a.Rows[a.Best].Recon], s.NonCartesian()), false)
+		si := o.Candidates[a.Rows[a.Best].Candidate].Scheme
+		r.Recommendation = reportPick(o, a, a.Best, scheme(a.Best), methodName(p.Recons[a.Rows[a.Best].Recon], gridded(o, si)), false)
 	}
 	for _, cv := range a.Curves {
 		s := p.Schemes[cv.Scheme]
-		r.PerCurve = append(r.PerCurve, reportPick(o, a, cv.Pick, s.Label, methodShort(p.Recons[cv.Recon], s.NonCartesian()), true))
+		r.PerCurve = append(r.PerCurve, reportPick(o, a, cv.Pick, s.Label, methodShort(p.Recons[cv.Recon], gridded(o, cv.Scheme)), true))
 	}
 	var err error
 	if r.Charts, err = reportCharts(o, a, caution); err != nil {
 		return r, err
 	}
 	r.Table = reportTable(o, a)
-	if r.Truth, err = grayPNG(o.Truth, ny, nx, 0, 1); err != nil {
+	if r.Truth, err = grayPNG(o.Truth, ny, nx, r.GrayLo, r.GrayHi); err != nil {
 		return r, fmt.Errorf("report truth image: %w", err)
 	}
 	r.ErrorLimit = errorLimit(o)
-	if r.Candidates, err = reportCandidates(o, a, r.ErrorLimit); err != nil {
+	if r.Candidates, err = reportCandidates(o, a, r.ErrorLimit, r.GrayLo, r.GrayHi); err != nil {
 		return r, err
 	}
 	return r, nil
