@@ -250,7 +250,7 @@ func TestRunWritesReport(t *testing.T) {
 	if !strings.Contains(strings.ReplaceAll(text, " ", ""), sum) {
 		t.Errorf("report lacks the plan's SHA-256 %s", sum)
 	}
-	for _, want := range []string{"<dt>seed</dt><dd>5</dd>", "<dt>plan file</dt><dd>" + planPath + "</dd>",
+	for _, want := range []string{"<dt>seed</dt><dd>5</dd>", "<dt>plan file</dt><dd>" + filepath.Base(planPath) + "</dd>",
 		"accelplan " + version, "2 scored noise draws", "<dt>workers</dt>", "<dt>generated</dt><dd>20"} {
 		if !strings.Contains(text, want) {
 			t.Errorf("report lacks %q", want)
@@ -333,7 +333,8 @@ func decodePNG(t *testing.T, what string, b []byte) image.Image {
 
 // TestReportPictures checks the pictures of each candidate against their
 // definitions: the error maps use one colour scale, the largest
-// |reconstruction − truth| of the whole run; the PSF is shown in decibels of
+// |reconstruction − truth| of the whole run; reconstructions share the
+// truth's grey window; the PSF is shown in decibels of
 // amplitude, 20·log10(|psf|/peak) (common practice), on a −40 … 0 dB grey
 // window; a Cartesian mask has one white row per acquired line.
 func TestReportPictures(t *testing.T) {
@@ -354,6 +355,15 @@ func TestReportPictures(t *testing.T) {
 		t.Fatal(err)
 	}
 	ny, nx := p.Object.PhaseLines, p.Object.ReadoutPoints
+	// Grey window: from the smaller of 0 and the truth's minimum to the
+	// truth's maximum, the window of the results folder's PNGs.
+	lo, hi := 0.0, 0.0
+	for _, v := range o.Truth {
+		lo, hi = math.Min(lo, v), math.Max(hi, v)
+	}
+	if r.GrayLo != lo || r.GrayHi != hi {
+		t.Errorf("grey window [%g, %g], want the truth's [%g, %g]", r.GrayLo, r.GrayHi, lo, hi)
+	}
 	limit := 0.0
 	for ci := range o.Images {
 		for ri := range o.Images[ci] {
@@ -386,7 +396,7 @@ func TestReportPictures(t *testing.T) {
 				if got, want := em.At(j, i), out.DivergingColor(v-o.Truth[i*nx+j], limit); got != want {
 					t.Fatalf("%s error map at (%d,%d) is %v, want %v on the shared scale", name, i, j, got, want)
 				}
-				g := uint8(math.Round(255 * math.Min(1, math.Max(0, v))))
+				g := uint8(math.Round(255 * math.Min(1, math.Max(0, (v-lo)/(hi-lo)))))
 				if y := gm.(*image.Gray).GrayAt(j, i).Y; y != g {
 					t.Fatalf("%s reconstruction at (%d,%d) is %d, want %d", name, i, j, y, g)
 				}
@@ -626,5 +636,40 @@ func BenchmarkWriteReportRun(b *testing.B) {
 		if err := writeReport(dir, o, a, version, caution); err != nil {
 			b.Fatal(err)
 		}
+	}
+}
+
+func TestReportTextHelpers(t *testing.T) {
+	// Worked examples of the unit conversions (1 s = 1000 ms; 125 s =
+	// 2 min 5 s) and of the candidate labels.
+	times := []struct {
+		s    float64
+		want string
+	}{{0.03, "30.0 ms"}, {0.9994, "999.4 ms"}, {3.3, "3.3 s"}, {59.9, "59.9 s"}, {125, "2:05"}}
+	for _, c := range times {
+		if got := scanTimeText(c.s); got != c.want {
+			t.Errorf("scanTimeText(%g) = %q, want %q", c.s, got, c.want)
+		}
+	}
+	labels := []struct {
+		row  plans.Row
+		want string
+	}{
+		{plans.Row{AskedR: 4, R: 2.2857, Shots: 14, FullShots: 32, ShotKind: "lines"}, "R = 2.29 (asked 4) · 14 of 32 lines"},
+		{plans.Row{AskedR: 2, R: 2, Shots: 16, FullShots: 32, ShotKind: "lines"}, "R = 2 · 16 of 32 lines"},
+		{plans.Row{AskedR: 6, R: 9.1667, Shots: 6, FullShots: 55, ShotKind: "illuminations"}, "R = 9.17 · 6 of 55 illuminations"},
+	}
+	for _, c := range labels {
+		if got := candidateLabel(c.row); got != c.want {
+			t.Errorf("candidateLabel = %q, want %q", got, c.want)
+		}
+		if got := askedR(c.row); (c.row.ShotKind == "lines") != (got != "—") {
+			t.Errorf("askedR(%s) = %q", c.row.ShotKind, got)
+		}
+	}
+	// FIPS 180-4 test vector: SHA-256("abc").
+	const abc = "ba7816bf8f01cfea414140de5dae2223b00361a396177a9cb410ff61f20015ad"
+	if got := groupHex(fmt.Sprintf("%x", sha256.Sum256([]byte("abc")))); got != "ba7816bf 8f01cfea 414140de 5dae2223 b00361a3 96177a9c b410ff61 f20015ad" || strings.ReplaceAll(got, " ", "") != abc {
+		t.Errorf("groupHex of SHA-256(abc) = %q", got)
 	}
 }
