@@ -161,6 +161,10 @@ type Recon struct {
 	Lambda     float64   `toml:"lambda"`
 	LambdaLook []float64 `toml:"lambda_search"`
 	Box        []float64 `toml:"box"`
+	// Tikhonov: the regularising operator, "identity" or "gradient".
+	Tikhonov string `toml:"tikhonov"`
+	// TGV: α₀/α₁, the weight of the second-order term relative to λ = α₁.
+	TGVRatio float64 `toml:"tgv_ratio"`
 }
 
 // Acceptance is the quality bar a protocol must meet.
@@ -184,6 +188,10 @@ const (
 	MethodZeroFilled   = "zero-filled"
 	MethodFISTAWavelet = "fista-wavelet"
 	MethodFISTABox     = "fista-box"
+	MethodTikhonov     = "tikhonov-cg"
+	MethodTV           = "tv-pdhg"
+	MethodTGV          = "tgv-pdhg"
+	MethodADMMWavelet  = "admm-wavelet"
 
 	MetricSSIM  = "ssim"
 	MetricPSNR  = "psnr"
@@ -193,11 +201,24 @@ const (
 var (
 	patterns    = []string{PatternUniform, PatternRandom, PatternRadial, PatternSpiral, PatternFan, PatternFanGolden}
 	spokeOrders = []string{"golden", "tiny-golden", "uniform", "rational-golden"}
-	methods     = []string{MethodZeroFilled, MethodFISTAWavelet, MethodFISTABox}
+	methods     = []string{MethodZeroFilled, MethodFISTAWavelet, MethodTikhonov, MethodTV, MethodTGV, MethodADMMWavelet, MethodFISTABox}
 	metrics     = []string{MetricSSIM, MetricPSNR, MetricNRMSE}
 	phantoms    = []string{"modified-shepp-logan"}
 	wavelets    = []string{"haar", "db2", "db3", "db4", "db5", "db6", "db7", "db8"}
 )
+
+// methodTitle is the label of a method that the plan leaves unlabelled.
+func methodTitle(r Recon) string {
+	switch r.Method {
+	case MethodTikhonov:
+		return "tikhonov-cg " + r.Tikhonov
+	case MethodFISTAWavelet, MethodADMMWavelet:
+		if r.Wavelet != "" {
+			return r.Method + " " + r.Wavelet
+		}
+	}
+	return r.Method
+}
 
 // Error is a mistake in a plan file. It names the file, the line (0 when the
 // mistake is not tied to one line), the key and what to do about it.
@@ -696,11 +717,11 @@ func (v *validator) recon(p *Plan, i int) {
 		v.fail("recon", i, "method", fmt.Sprintf("unknown method %q", r.Method), "choose one of: "+strings.Join(methods, ", "))
 		return
 	}
+	if r.Method == MethodTikhonov && r.Tikhonov == "" {
+		r.Tikhonov = "gradient"
+	}
 	if r.Label == "" {
-		r.Label = r.Method
-		if r.Method == MethodFISTAWavelet && r.Wavelet != "" {
-			r.Label += " " + r.Wavelet
-		}
+		r.Label = methodTitle(*r)
 	}
 	for j, o := range p.Recons[:i] {
 		if o.Label == r.Label {
@@ -729,6 +750,36 @@ func (v *validator) recon(p *Plan, i int) {
 		}
 		return
 	}
+	usesWavelet := r.Method == MethodFISTAWavelet || r.Method == MethodADMMWavelet
+	if r.Method != MethodTikhonov && r.Tikhonov != "" {
+		v.fail("recon", i, "tikhonov", "applies to method "+MethodTikhonov+" only", "remove it")
+	}
+	if r.Method != MethodTGV && r.TGVRatio != 0 {
+		v.fail("recon", i, "tgv_ratio", "applies to method "+MethodTGV+" only", "remove it")
+	}
+	if !usesWavelet && (r.Wavelet != "" || r.Levels != 0) {
+		v.fail("recon", i, "wavelet", "method "+r.Method+" uses no wavelet", "remove wavelet and levels")
+	}
+	switch r.Method {
+	case MethodTikhonov:
+		if r.Tikhonov == "" {
+			r.Tikhonov = "gradient"
+		}
+		if r.Tikhonov != "identity" && r.Tikhonov != "gradient" {
+			v.fail("recon", i, "tikhonov", fmt.Sprintf("unknown regularising operator %q", r.Tikhonov), "choose identity or gradient")
+		}
+	case MethodTGV:
+		if r.TGVRatio == 0 {
+			r.TGVRatio = 2
+		}
+		if !(r.TGVRatio > 0) || r.TGVRatio > 100 {
+			v.fail("recon", i, "tgv_ratio", fmt.Sprintf("must be between 0 and 100, got %v", r.TGVRatio), "2 is the common choice")
+		}
+	}
+	if !usesWavelet {
+		v.iterLambda(p, i)
+		return
+	}
 	if r.Wavelet == "" {
 		r.Wavelet = "db4"
 	}
@@ -747,6 +798,12 @@ func (v *validator) recon(p *Plan, i int) {
 				"lower levels or change object.phase_lines / object.readout_points")
 		}
 	}
+	v.iterLambda(p, i)
+}
+
+// iterLambda checks the iteration cap and the λ choice of recon i.
+func (v *validator) iterLambda(p *Plan, i int) {
+	r := &p.Recons[i]
 	if r.Iterations == 0 {
 		r.Iterations = 60
 	}
@@ -761,6 +818,9 @@ func (v *validator) recon(p *Plan, i int) {
 	}
 	if r.LambdaLook == nil && r.Lambda == 0 {
 		r.LambdaLook = []float64{1e-4, 1e-1}
+		if r.Method == MethodTikhonov {
+			r.LambdaLook = []float64{1e-4, 10}
+		}
 	}
 	if r.LambdaLook != nil {
 		l := r.LambdaLook

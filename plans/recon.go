@@ -12,8 +12,14 @@ import (
 type solver struct {
 	rc    Recon
 	zf    []complex128
+	x     []complex128 // result of the operator-bound solvers
 	wy    []complex128 // density-weighted data, grown as needed
 	prior priors.Prior
+	// Solvers built around one operator, per encoding (candidate).
+	tik  map[*encoding]*priors.TikhonovSolver
+	tv   map[*encoding]*priors.TVSolver
+	tgv  map[*encoding]*priors.TGVSolver
+	admm map[*encoding]*priors.ADMM
 }
 
 func (w *workerState) solverFor(ri int) (*solver, error) {
@@ -21,10 +27,13 @@ func (w *workerState) solverFor(ri int) (*solver, error) {
 		return s, nil
 	}
 	rc := w.env.plan.Recons[ri]
-	s := &solver{rc: rc, zf: make([]complex128, w.env.ny*w.env.nx)}
+	n := w.env.ny * w.env.nx
+	s := &solver{rc: rc, zf: make([]complex128, n), x: make([]complex128, n),
+		tik: map[*encoding]*priors.TikhonovSolver{}, tv: map[*encoding]*priors.TVSolver{},
+		tgv: map[*encoding]*priors.TGVSolver{}, admm: map[*encoding]*priors.ADMM{}}
 	switch rc.Method {
-	case MethodZeroFilled:
-	case MethodFISTAWavelet:
+	case MethodZeroFilled, MethodTikhonov, MethodTV, MethodTGV:
+	case MethodFISTAWavelet, MethodADMMWavelet:
 		p, err := priors.NewWaveletL1(w.env.ny, w.env.nx, rc.Levels, rc.Wavelet)
 		if err != nil {
 			return nil, fmt.Errorf("recon %q: %w", rc.Label, err)
@@ -78,6 +87,81 @@ func (w *workerState) reconstruct(ri int, enc *encoding, y []complex128, lambda 
 			return nil, 0, fmt.Errorf("recon %q: %w", s.rc.Label, err)
 		}
 		return x, info.Iterations, nil
+	case MethodTikhonov:
+		// Tikhonov λ is dimensionless: both terms are squared intensities.
+		ts, ok := s.tik[enc]
+		if !ok {
+			kind, err := priors.ParseTikhonovKind(s.rc.Tikhonov)
+			if err != nil {
+				return nil, 0, err
+			}
+			reg, err := priors.NewTikhonov(kind, w.env.ny, w.env.nx, priors.BoundaryNeumann)
+			if err != nil {
+				return nil, 0, err
+			}
+			if ts, err = priors.NewTikhonovSolver(enc.op, reg, lambda); err != nil {
+				return nil, 0, fmt.Errorf("recon %q: %w", s.rc.Label, err)
+			}
+			s.tik[enc] = ts
+		}
+		if err := ts.SetLambda(lambda); err != nil {
+			return nil, 0, err
+		}
+		copy(s.x, s.zf)
+		rep, err := ts.Solve(s.x, y, priors.CGOptions{MaxIter: s.rc.Iterations, Tol: 1e-6})
+		if err != nil {
+			return nil, 0, fmt.Errorf("recon %q: %w", s.rc.Label, err)
+		}
+		return s.x, rep.Iterations, nil
+	case MethodTV:
+		ts, ok := s.tv[enc]
+		if !ok {
+			var err error
+			if ts, err = priors.NewTVSolver(enc.op, w.env.ny, w.env.nx, priors.BoundaryNeumann); err != nil {
+				return nil, 0, fmt.Errorf("recon %q: %w", s.rc.Label, err)
+			}
+			s.tv[enc] = ts
+		}
+		copy(s.x, s.zf)
+		rep, err := ts.Solve(s.x, y, priors.RelativeLambda(lambda, s.zf),
+			priors.PDHGOptions{MaxIter: s.rc.Iterations, Tol: 1e-4, GapEvery: 10})
+		if err != nil {
+			return nil, 0, fmt.Errorf("recon %q: %w", s.rc.Label, err)
+		}
+		return s.x, rep.Iterations, nil
+	case MethodTGV:
+		ts, ok := s.tgv[enc]
+		if !ok {
+			var err error
+			if ts, err = priors.NewTGVSolver(enc.op, w.env.ny, w.env.nx, priors.BoundaryNeumann); err != nil {
+				return nil, 0, fmt.Errorf("recon %q: %w", s.rc.Label, err)
+			}
+			s.tgv[enc] = ts
+		}
+		copy(s.x, s.zf)
+		a1 := priors.RelativeLambda(lambda, s.zf)
+		rep, err := ts.Solve(s.x, y, a1, s.rc.TGVRatio*a1, priors.PDHGOptions{MaxIter: s.rc.Iterations, Tol: 1e-4, GapEvery: 10})
+		if err != nil {
+			return nil, 0, fmt.Errorf("recon %q: %w", s.rc.Label, err)
+		}
+		return s.x, rep.Iterations, nil
+	case MethodADMMWavelet:
+		as, ok := s.admm[enc]
+		if !ok {
+			var err error
+			if as, err = priors.NewADMM(enc.op, s.prior); err != nil {
+				return nil, 0, fmt.Errorf("recon %q: %w", s.rc.Label, err)
+			}
+			s.admm[enc] = as
+		}
+		copy(s.x, s.zf)
+		opt := priors.DefaultADMMOptions()
+		opt.MaxIter = s.rc.Iterations
+		rep, err := as.Solve(s.x, y, priors.RelativeLambda(lambda, s.zf), opt)
+		if err != nil {
+			return nil, 0, fmt.Errorf("recon %q: %w", s.rc.Label, err)
+		}
+		return s.x, rep.Iterations, nil
 	case MethodFISTABox:
 		// Projected gradient with FISTA momentum: the box's proximal map is
 		// the projection whatever the weight, so λ is a formality.
