@@ -108,8 +108,14 @@ func gridded(o *plans.Outcome, si int) bool {
 	return o.Plan.Schemes[si].NonCartesian()
 }
 
-// methodFISTABox is the plan's name of FISTA with a box constraint.
-const methodFISTABox = "fista-box"
+// Plan names of methods being added to plans; they are matched here by
+// name so that the report labels them as soon as a plan can use them.
+const (
+	methodTikhonov    = "tikhonov-cg"
+	methodTV          = "tv-pdhg"
+	methodTGV         = "tgv-pdhg"
+	methodADMMWavelet = "admm-wavelet"
+)
 
 // methodShort is the published name of a reconstruction method in a few
 // words, for tables, headings and the stepper; the plan's own label is put
@@ -124,8 +130,16 @@ func methodShort(rc plans.Recon, nonCartesian bool) string {
 		}
 	case plans.MethodFISTAWavelet:
 		name = "FISTA, wavelet-ℓ1 (" + rc.Wavelet + ")"
-	case methodFISTABox:
+	case plans.MethodFISTABox:
 		name = "FISTA, box constraint"
+	case methodTikhonov:
+		name = "Tikhonov, conjugate gradients"
+	case methodTV:
+		name = "TV, primal-dual"
+	case methodTGV:
+		name = "TGV, primal-dual"
+	case methodADMMWavelet:
+		name = "ADMM, wavelet-ℓ1 (" + rc.Wavelet + ")"
 	default:
 		name = rc.Method
 	}
@@ -146,8 +160,16 @@ func methodName(rc plans.Recon, nonCartesian bool) string {
 	case plans.MethodFISTAWavelet:
 		name = fmt.Sprintf("FISTA (Beck, Teboulle, SIAM J Imaging Sci 2009) with a wavelet-ℓ1 prior, %s (Daubechies 1992), %d levels, %d iterations",
 			rc.Wavelet, rc.Levels, rc.Iterations)
-	case methodFISTABox:
+	case plans.MethodFISTABox:
 		name = fmt.Sprintf("FISTA (Beck, Teboulle, SIAM J Imaging Sci 2009) with projection onto a box constraint, %d iterations", rc.Iterations)
+	case methodTikhonov:
+		name = "Tikhonov regularisation solved by conjugate gradients (Hestenes, Stiefel, J Res NBS 1952)"
+	case methodTV:
+		name = "total-variation regularisation (Rudin, Osher, Fatemi, Physica D 1992) by the primal-dual hybrid gradient (Chambolle, Pock, J Math Imaging Vis 2011)"
+	case methodTGV:
+		name = "second-order total generalised variation (Bredies, Kunisch, Pock, SIAM J Imaging Sci 2010) by the primal-dual hybrid gradient (Chambolle, Pock, J Math Imaging Vis 2011)"
+	case methodADMMWavelet:
+		name = fmt.Sprintf("ADMM (Boyd et al., Found Trends Mach Learn 2011) with a wavelet-ℓ1 prior, %s (Daubechies 1992), %d levels", rc.Wavelet, rc.Levels)
 	default:
 		name = rc.Method
 	}
@@ -158,7 +180,7 @@ func methodName(rc plans.Recon, nonCartesian bool) string {
 // chose a label of its own rather than the default one.
 func withLabel(rc plans.Recon, name string) string {
 	auto := rc.Method
-	if rc.Method == plans.MethodFISTAWavelet && rc.Wavelet != "" {
+	if (rc.Method == plans.MethodFISTAWavelet || rc.Method == methodADMMWavelet) && rc.Wavelet != "" {
 		auto += " " + rc.Wavelet
 	}
 	if rc.Label != "" && rc.Label != auto && rc.Label != rc.Method {
@@ -182,7 +204,7 @@ func lambdaText(o *plans.Outcome, a *plans.Analysis, ci, ri int, row plans.Row) 
 		return fmt.Sprintf("λ = %s (relative to the largest zero-filled magnitude), %s", fmtNum(t.Lambda), t.Rule)
 	case rc.Method == plans.MethodZeroFilled:
 		return "no λ: the zero-filled reconstruction has no regularisation weight"
-	case rc.Method == methodFISTABox:
+	case rc.Method == plans.MethodFISTABox:
 		return "no λ: the box constraint has no regularisation weight"
 	default:
 		return fmt.Sprintf("λ = %s (relative to the largest zero-filled magnitude), fixed in the plan", fmtNum(row.Lambda))
@@ -204,7 +226,7 @@ func lambdaShort(o *plans.Outcome, ci, ri int) string {
 	switch {
 	case o.Tunings[ci][ri].Rule != "":
 		return "tuned on a calibration draw"
-	case o.Plan.Recons[ri].Method == plans.MethodZeroFilled, o.Plan.Recons[ri].Method == methodFISTABox:
+	case o.Plan.Recons[ri].Method == plans.MethodZeroFilled, o.Plan.Recons[ri].Method == plans.MethodFISTABox:
 		return "none"
 	}
 	return "fixed in the plan"
@@ -529,8 +551,14 @@ func reportFacts(o *plans.Outcome, version, generated string) []out.ReportFact {
 		sigma += fmt.Sprintf(" (reference SNR %g of the fully sampled scan)", sc.ReferenceSNR)
 	}
 	object := fmt.Sprintf("%s phantom, analytic spectrum, %d × %d grid", p.Object.Phantom, p.Object.PhaseLines, p.Object.ReadoutPoints)
-	if p.Object.FOVmm > 0 {
+	switch {
+	case p.Object.FOVmm > 0:
 		object += fmt.Sprintf(", FOV %g mm", p.Object.FOVmm)
+	case p.Object.FOVum > 0:
+		object += fmt.Sprintf(", FOV %g µm", p.Object.FOVum)
+	}
+	if m := p.Micro; p.Modality == plans.ModalityODT && m.FieldSNR > 0 {
+		sigma = fmtNum(o.Sigma) + fmt.Sprintf(" (incident field amplitude / σ = %g per camera pixel)", m.FieldSNR)
 	}
 	facts := []out.ReportFact{
 		{Name: "plan file", Value: planName(p)},
@@ -544,6 +572,12 @@ func reportFacts(o *plans.Outcome, version, generated string) []out.ReportFact {
 	if sc.TRms > 0 {
 		facts = append(facts, out.ReportFact{Name: "timing",
 			Value: fmt.Sprintf("TR %g ms, echo train length %d, averages %d", sc.TRms, max(sc.EchoTrain, 1), max(sc.Averages, 1))})
+	}
+	if m := p.Micro; p.Modality == plans.ModalityODT {
+		facts = append(facts,
+			out.ReportFact{Name: "microscope", Value: fmt.Sprintf("wavelength %g µm, medium index %g, NA %g illumination, %g detection",
+				m.WavelengthUm, m.MediumIndex, m.NAIllumination, m.NADetection)},
+			out.ReportFact{Name: "timing", Value: fmt.Sprintf("exposure %g ms and settling %g ms per illumination", m.ExposureMs, m.SettlingMs)})
 	}
 	return append(facts,
 		out.ReportFact{Name: "methods", Value: strings.Join(methods, "; ")},
