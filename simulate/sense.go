@@ -17,7 +17,10 @@ import (
 // [c·m, (c+1)·m). W is the optional prewhitening L⁻¹ of a NoiseCovariance
 // Ψ = L·Lᴴ applied across coils per sample; with it, least squares on E is the
 // SNR-optimal SENSE reconstruction, provided the data are whitened by the same
-// covariance (NoiseCovariance.Whiten). Sources: Pruessmann KP, Weiger M,
+// covariance (NoiseCovariance.Whiten). Any W with WᴴW = Ψ⁻¹ gives the same
+// least-squares solution and noise; the triangular L⁻¹ is used rather than the
+// symmetric Ψ^(−1/2) because it comes straight from the Cholesky factor and
+// is applied in place. Sources: Pruessmann KP, Weiger M,
 // Scheidegger MB, Boesiger P, MRM 1999;42:952-962 (SENSE); Pruessmann KP,
 // Weiger M, Börnert P, Boesiger P, MRM 2001;46:638-651 (the operator form for
 // arbitrary k-space trajectories).
