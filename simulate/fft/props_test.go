@@ -165,7 +165,7 @@ func TestNoAllocations(t *testing.T) {
 			t.Errorf("1D n=%d: %v allocations per call", n, a)
 		}
 	}
-	for _, sh := range [][2]int{{256, 256}, {192, 240}, {7, 97}, {5, 8}} {
+	for _, sh := range [][2]int{{256, 256}, {192, 240}, {7, 97}, {5, 8}, {6, 10}, {82, 6}} {
 		p, _ := NewPlan2D(sh[0], sh[1])
 		x := randVec(sh[0]*sh[1], 2)
 		y := make([]complex128, len(x))
