@@ -160,6 +160,9 @@ type Recon struct {
 	Iterations int       `toml:"iterations"`
 	Lambda     float64   `toml:"lambda"`
 	LambdaLook []float64 `toml:"lambda_search"`
+	// LambdaRule chooses how λ is set when it is not fixed: "calibration"
+	// (the default), "discrepancy", "universal" or "oracle".
+	LambdaRule string    `toml:"lambda_rule"`
 	Box        []float64 `toml:"box"`
 	// Tikhonov: the regularising operator, "identity" or "gradient".
 	Tikhonov string `toml:"tikhonov"`
@@ -192,6 +195,11 @@ const (
 	MethodTV           = "tv-pdhg"
 	MethodTGV          = "tgv-pdhg"
 	MethodADMMWavelet  = "admm-wavelet"
+
+	RuleCalibration = "calibration"
+	RuleDiscrepancy = "discrepancy"
+	RuleUniversal   = "universal"
+	RuleOracle      = "oracle"
 
 	MetricSSIM  = "ssim"
 	MetricPSNR  = "psnr"
@@ -743,7 +751,7 @@ func (v *validator) recon(p *Plan, i int) {
 		for _, k := range []struct {
 			set  bool
 			name string
-		}{{r.Wavelet != "", "wavelet"}, {r.Levels != 0, "levels"}, {r.Iterations != 0, "iterations"}, {r.Lambda != 0, "lambda"}, {r.LambdaLook != nil, "lambda_search"}} {
+		}{{r.Wavelet != "", "wavelet"}, {r.Levels != 0, "levels"}, {r.Iterations != 0, "iterations"}, {r.Lambda != 0, "lambda"}, {r.LambdaLook != nil, "lambda_search"}, {r.LambdaRule != "", "lambda_rule"}} {
 			if k.set {
 				v.fail("recon", i, k.name, "does not apply to method "+MethodZeroFilled, "remove it")
 			}
@@ -815,6 +823,21 @@ func (v *validator) iterLambda(p *Plan, i int) {
 	}
 	if r.Lambda > 0 && r.LambdaLook != nil {
 		v.fail("recon", i, "lambda_search", "cannot be combined with a fixed lambda", "keep one of the two")
+	}
+	rules := []string{RuleCalibration, RuleDiscrepancy, RuleUniversal, RuleOracle}
+	switch {
+	case r.LambdaRule != "" && r.Lambda > 0:
+		v.fail("recon", i, "lambda_rule", "cannot be combined with a fixed lambda", "keep one of the two")
+	case r.LambdaRule == "" && r.Lambda == 0:
+		r.LambdaRule = RuleCalibration
+	case r.LambdaRule != "" && !oneOf(r.LambdaRule, rules):
+		v.fail("recon", i, "lambda_rule", fmt.Sprintf("unknown rule %q", r.LambdaRule), "choose one of: "+strings.Join(rules, ", "))
+	case r.LambdaRule == RuleUniversal && r.Method != MethodFISTAWavelet && r.Method != MethodADMMWavelet:
+		v.fail("recon", i, "lambda_rule", "the universal threshold is defined for wavelet shrinkage", "use it with fista-wavelet or admm-wavelet, or choose calibration or discrepancy")
+	}
+	if r.LambdaRule == RuleOracle && !strings.Contains(strings.ToLower(r.Label), "oracle") {
+		// A truth-tuned result is never shown without saying so.
+		r.Label += " [oracle]"
 	}
 	if r.LambdaLook == nil && r.Lambda == 0 {
 		r.LambdaLook = []float64{1e-4, 1e-1}

@@ -65,18 +65,7 @@ func (w *workerState) reconstruct(ri int, enc *encoding, y []complex128, lambda 
 	if err != nil {
 		return nil, 0, err
 	}
-	if enc.weights == nil {
-		enc.op.Adjoint(s.zf, y)
-	} else {
-		if cap(s.wy) < len(y) {
-			s.wy = make([]complex128, len(y))
-		}
-		wy := s.wy[:len(y)]
-		for i, v := range y {
-			wy[i] = v * complex(enc.weights[i], 0)
-		}
-		enc.op.Adjoint(s.zf, wy)
-	}
+	w.adjoint(s, enc, y)
 	switch s.rc.Method {
 	case MethodZeroFilled:
 		return s.zf, 0, nil
@@ -173,4 +162,21 @@ func (w *workerState) reconstruct(ri int, enc *encoding, y []complex128, lambda 
 		return x, info.Iterations, nil
 	}
 	return nil, 0, fmt.Errorf("recon %q: method %q has no solver", s.rc.Label, s.rc.Method)
+}
+
+// adjoint writes the adjoint image of y into s.zf: Eᴴy, or EᴴWy with the
+// density compensation of a non-Cartesian trajectory.
+func (w *workerState) adjoint(s *solver, enc *encoding, y []complex128) {
+	if enc.weights == nil {
+		enc.op.Adjoint(s.zf, y)
+		return
+	}
+	if cap(s.wy) < len(y) {
+		s.wy = make([]complex128, len(y))
+	}
+	wy := s.wy[:len(y)]
+	for i, v := range y {
+		wy[i] = v * complex(enc.weights[i], 0)
+	}
+	enc.op.Adjoint(s.zf, wy)
 }

@@ -352,7 +352,7 @@ func Run(ctx context.Context, p *Plan, opt Options) (*Outcome, error) {
 }
 
 func needsTuning(r Recon) bool {
-	return r.Method != MethodZeroFilled && r.Method != MethodFISTABox && r.Lambda == 0
+	return r.Method != MethodZeroFilled && r.Method != MethodFISTABox && r.Lambda == 0 && r.LambdaRule == RuleCalibration
 }
 
 // pool runs jobs on workers goroutines, each with its own scratch. Results
@@ -525,6 +525,23 @@ func (w *workerState) do(j job) error {
 		lambda, rule = 0, "none (a hard box constraint)"
 	}
 	t0 := time.Now()
+	switch rc.LambdaRule {
+	case RuleDiscrepancy:
+		if lambda, err = w.discrepancy(j.recon, enc, y); err != nil {
+			return err
+		}
+		rule = "discrepancy principle: residual = noise level (this draw, no truth used)"
+	case RuleUniversal:
+		// Donoho & Johnstone 1994: σ√(2 ln n) for n coefficients, as an
+		// absolute threshold; expressed relative to the adjoint's peak.
+		lambda = w.universal(j.recon, enc, y)
+		rule = "universal threshold σ√(2 ln n)"
+	case RuleOracle:
+		if lambda, _, err = w.search(j.recon, enc, y); err != nil {
+			return err
+		}
+		rule = "ORACLE: tuned on this scored draw against the truth (an upper bound, not a protocol result)"
+	}
 	img, iters, err := w.reconstruct(j.recon, enc, y, lambda)
 	if err != nil {
 		return err
@@ -601,21 +618,33 @@ const tuneEvals = 12
 // is never scored, by a golden-section search over log λ that optimises the
 // plan's acceptance metric.
 func (w *workerState) tune(j job, rc Recon) error {
-	p := w.env.plan
 	enc, y, seed, err := w.draw(j.cand, "calibration")
 	if err != nil {
 		return err
 	}
-	metric := p.Accept.Metric
+	best, score, err := w.search(j.recon, enc, y)
+	if err != nil {
+		return err
+	}
+	t := Tuning{Lambda: best, Rule: "tuned on a calibration noise draw (" + w.env.plan.Accept.Metric + ")",
+		Score: score, NoiseSeed: seed, Evals: tuneEvals}
+	w.env.out.Tunings[j.cand][j.recon] = t
+	return w.env.journal.record(journalEntry{Key: j.key, Tuning: &t}, nil)
+}
+
+// search returns the λ in the method's search range that gives the best
+// acceptance metric against the truth on data y (golden-section search over
+// log λ), and that metric.
+func (w *workerState) search(ri int, enc *encoding, y []complex128) (best, score float64, err error) {
+	rc := w.env.plan.Recons[ri]
+	metric := w.env.plan.Accept.Metric
 	sign := -1.0
 	if !HigherIsBetter(metric) {
 		sign = 1
 	}
 	var firstErr error
-	evals := 0
 	cost := func(lambda float64) float64 {
-		evals++
-		img, _, err := w.reconstruct(j.recon, enc, y, lambda)
+		img, _, err := w.reconstruct(ri, enc, y, lambda)
 		if err != nil {
 			if firstErr == nil {
 				firstErr = err
@@ -627,22 +656,75 @@ func (w *workerState) tune(j job, rc Recon) error {
 		if err != nil && firstErr == nil {
 			firstErr = err
 		}
-		v := Result{NRMSE: n, PSNR: ps, SSIM: ss}.Metric(metric)
-		return sign * v
+		return sign * Result{NRMSE: n, PSNR: ps, SSIM: ss}.Metric(metric)
 	}
 	best, trace, err := priors.TuneLambda(cost, rc.LambdaLook[0], rc.LambdaLook[1], tuneEvals)
 	if firstErr != nil {
-		return firstErr
+		return 0, 0, firstErr
 	}
 	if err != nil {
-		return err
+		return 0, 0, err
 	}
 	bestCost := math.Inf(1)
 	for _, e := range trace {
 		bestCost = math.Min(bestCost, e.Score)
 	}
-	t := Tuning{Lambda: best, Rule: "tuned on a calibration noise draw (" + metric + ")",
-		Score: sign * bestCost, NoiseSeed: seed, Evals: evals}
-	w.env.out.Tunings[j.cand][j.recon] = t
-	return w.env.journal.record(journalEntry{Key: j.key, Tuning: &t}, nil)
+	return best, sign * bestCost, nil
+}
+
+// discrepancy returns the λ whose reconstruction leaves a residual
+// ‖Ex − y‖² equal to the expected noise energy 2σ²·m of m complex samples
+// (Morozov's discrepancy principle; e.g. Engl, Hanke, Neubauer, Regularization
+// of Inverse Problems, 1996), found by bisection over log λ in the method's
+// search range; the residual grows with λ. It uses the data and the noise
+// level only, never the truth.
+func (w *workerState) discrepancy(ri int, enc *encoding, y []complex128) (float64, error) {
+	rc := w.env.plan.Recons[ri]
+	target := 2 * w.env.out.Sigma * w.env.out.Sigma * float64(len(y))
+	r := make([]complex128, len(y))
+	resid := func(lambda float64) (float64, error) {
+		img, _, err := w.reconstruct(ri, enc, y, lambda)
+		if err != nil {
+			return 0, err
+		}
+		enc.op.Forward(r, img)
+		var s float64
+		for i, v := range r {
+			d := v - y[i]
+			s += real(d)*real(d) + imag(d)*imag(d)
+		}
+		return s, nil
+	}
+	lo, hi := math.Log(rc.LambdaLook[0]), math.Log(rc.LambdaLook[1])
+	for k := 0; k < tuneEvals; k++ {
+		mid := (lo + hi) / 2
+		v, err := resid(math.Exp(mid))
+		if err != nil {
+			return 0, err
+		}
+		if v < target {
+			lo = mid
+		} else {
+			hi = mid
+		}
+	}
+	return math.Exp((lo + hi) / 2), nil
+}
+
+// universal returns the universal threshold σ√(2 ln n) of Donoho and
+// Johnstone (Biometrika 1994;81:425-455) for the n wavelet coefficients of
+// the image, as a λ relative to the adjoint image's peak (the scale
+// reconstruct expects).
+func (w *workerState) universal(ri int, enc *encoding, y []complex128) float64 {
+	s, err := w.solverFor(ri)
+	if err != nil {
+		return 0
+	}
+	w.adjoint(s, enc, y)
+	peak := priors.MaxAbs(s.zf)
+	if peak == 0 {
+		return 0
+	}
+	n := float64(w.env.ny * w.env.nx)
+	return w.env.out.Sigma * math.Sqrt(2*math.Log(n)) / peak
 }

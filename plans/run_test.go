@@ -2,6 +2,7 @@ package plans
 
 import (
 	"context"
+	"math"
 	"reflect"
 	"strings"
 	"testing"
@@ -128,4 +129,99 @@ func TestRecommendationPicksShortestPassing(t *testing.T) {
 	if got := a.pick(idx); got != -1 {
 		t.Errorf("picked row %d though none meets 0.99", got)
 	}
+}
+
+// newTestWorker builds a worker for plan text, as the runner does.
+func newTestWorker(t *testing.T, text string) (*workerState, *Plan) {
+	t.Helper()
+	p, err := Parse("t.toml", []byte(text))
+	if err != nil {
+		t.Fatal(err)
+	}
+	cands, err := Candidates(p)
+	if err != nil {
+		t.Fatal(err)
+	}
+	o := &Outcome{Plan: p, Candidates: cands}
+	env := &runEnv{plan: p, out: o, clean: newCleanData(len(cands)), ny: p.Object.PhaseLines, nx: p.Object.ReadoutPoints}
+	if err := env.setScene(); err != nil {
+		t.Fatal(err)
+	}
+	w, err := newWorkerState(env)
+	if err != nil {
+		t.Fatal(err)
+	}
+	return w, p
+}
+
+// The discrepancy principle (Morozov; Engl, Hanke & Neubauer 1996) picks the
+// λ whose residual ‖Ex − y‖² equals the expected noise energy 2σ²m.
+func TestDiscrepancyRuleMeetsNoiseLevel(t *testing.T) {
+	text := strings.Replace(smallPlan, "iterations = 15", "iterations = 40\nlambda_rule = \"discrepancy\"", 1)
+	w, _ := newTestWorker(t, text)
+	enc, y, _, err := w.draw(2, "test")
+	if err != nil {
+		t.Fatal(err)
+	}
+	lambda, err := w.discrepancy(1, enc, y)
+	if err != nil {
+		t.Fatal(err)
+	}
+	img, _, err := w.reconstruct(1, enc, y, lambda)
+	if err != nil {
+		t.Fatal(err)
+	}
+	r := make([]complex128, len(y))
+	enc.op.Forward(r, img)
+	var res float64
+	for i := range r {
+		d := r[i] - y[i]
+		res += real(d)*real(d) + imag(d)*imag(d)
+	}
+	target := 2 * w.env.out.Sigma * w.env.out.Sigma * float64(len(y))
+	if math.Abs(res/target-1) > 0.05 {
+		t.Errorf("residual %.4g against the noise energy %.4g (λ = %.3g)", res, target, lambda)
+	}
+}
+
+// The universal threshold is σ√(2 ln n) (Donoho & Johnstone 1994), here
+// expressed relative to the adjoint image's peak.
+func TestUniversalRule(t *testing.T) {
+	text := strings.Replace(smallPlan, "iterations = 15", "iterations = 15\nlambda_rule = \"universal\"", 1)
+	w, p := newTestWorker(t, text)
+	enc, y, _, err := w.draw(0, "test")
+	if err != nil {
+		t.Fatal(err)
+	}
+	rel := w.universal(1, enc, y)
+	zf := make([]complex128, enc.op.ImageLen())
+	enc.op.Adjoint(zf, y)
+	n := float64(p.Object.PhaseLines * p.Object.ReadoutPoints)
+	want := w.env.out.Sigma * math.Sqrt(2*math.Log(n))
+	if got := rel * maxAbsTest(zf); math.Abs(got/want-1) > 1e-12 {
+		t.Errorf("absolute threshold %v, want σ√(2 ln n) = %v", got, want)
+	}
+}
+
+func TestOracleIsLabelled(t *testing.T) {
+	text := strings.Replace(smallPlan, "iterations = 15", "iterations = 15\nlambda_rule = \"oracle\"", 1)
+	p, err := Parse("t.toml", []byte(text))
+	if err != nil {
+		t.Fatal(err)
+	}
+	if !strings.Contains(p.Recons[1].Label, "oracle") {
+		t.Errorf("an oracle method is labelled %q", p.Recons[1].Label)
+	}
+	bad := strings.Replace(smallPlan, `method = "zero-filled"`, "method = \"zero-filled\"\nlambda_rule = \"universal\"", 1)
+	if _, err := Parse("t.toml", []byte(bad)); err == nil || !strings.Contains(err.Error(), "lambda") {
+		t.Errorf("universal threshold on zero-filled accepted: %v", err)
+	}
+}
+
+func maxAbsTest(x []complex128) float64 {
+	m := 0.0
+	for _, v := range x {
+		m = math.Max(m, math.Hypot(real(v), imag(v)))
+	}
+	return m
 }
