@@ -46,6 +46,10 @@ func (w *workerState) encodingFor(ci int) (*encoding, error) {
 		if err := w.odtEncoding(ci, e); err != nil {
 			return nil, err
 		}
+	} else if env.coils != nil {
+		if err := w.senseEncoding(ci, e); err != nil {
+			return nil, err
+		}
 	} else if s.Mask != nil {
 		op, err := simulate.NewCartesian(env.ny, env.nx, s.Mask)
 		if err != nil {
@@ -93,6 +97,46 @@ func (w *workerState) encodingFor(ci int) (*encoding, error) {
 	e.clean = env.clean.data[ci]
 	w.encs[ci] = e
 	return e, nil
+}
+
+// senseEncoding builds the multi-coil encoding E = [F·S_1; …; F·S_N] of
+// candidate ci over its mask or trajectory, with the exact coil-weighted
+// spectrum of the phantom as data (each exponential term of a sensitivity
+// shifts the phantom's spectrum) and prewhitening when the coil noise is
+// correlated.
+func (w *workerState) senseEncoding(ci int, e *encoding) error {
+	env := w.env
+	s := env.out.Candidates[ci].Sampling
+	if s.Mask != nil {
+		op, err := simulate.NewCartesianSENSE(env.ny, env.nx, s.Mask, env.maps, env.coilNoise)
+		if err != nil {
+			return err
+		}
+		e.op = op
+		env.clean.once[ci].Do(func() {
+			env.clean.data[ci], env.clean.err[ci] = env.coils.CartesianData(env.phantom, env.ny, env.nx, s.Mask)
+		})
+	} else {
+		kx := make([]float64, len(s.K))
+		ky := make([]float64, len(s.K))
+		for j, k := range s.K {
+			kx[j], ky[j] = k[0], k[1]
+		}
+		op, err := simulate.NewNUFFTSENSE(env.ny, env.nx, kx, ky, nufft.Options{}, env.maps, env.coilNoise)
+		if err != nil {
+			return fmt.Errorf("candidate %s: %w", env.out.Candidates[ci].Key(), err)
+		}
+		e.op = op
+		// The density weights repeat for every coil (data are coil-major).
+		e.weights = make([]float64, 0, len(s.Weights)*len(env.maps))
+		for range env.maps {
+			e.weights = append(e.weights, s.Weights...)
+		}
+		env.clean.once[ci].Do(func() {
+			env.clean.data[ci], env.clean.err[ci] = env.coils.Samples(env.phantom, env.ny, env.nx, kx, ky, 1)
+		})
+	}
+	return nil
 }
 
 // odtEncoding builds the diffraction-tomography operator of candidate ci:

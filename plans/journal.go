@@ -210,9 +210,32 @@ func writeFileSync(path string, b []byte) error {
 	return os.Rename(tmp, path)
 }
 
-// contentKey hashes the JSON encoding of parts into a short hex key.
+// buildID identifies the running binary by the SHA-256 of its file, so that
+// journal entries made by different code are never reused: a rebuilt binary
+// recomputes, the same binary (a resumed run, every shard of a cluster job)
+// shares its entries.
+var buildID = sync.OnceValue(func() string {
+	exe, err := os.Executable()
+	if err != nil {
+		return "unknown-binary"
+	}
+	f, err := os.Open(exe)
+	if err != nil {
+		return "unknown-binary"
+	}
+	defer f.Close()
+	h := sha256.New()
+	if _, err := io.Copy(h, f); err != nil {
+		return "unknown-binary"
+	}
+	return hex.EncodeToString(h.Sum(nil)[:12])
+})
+
+// contentKey hashes the JSON encoding of parts, and the binary that computes
+// them, into a short hex key.
 func contentKey(parts ...any) string {
 	h := sha256.New()
+	io.WriteString(h, buildID())
 	enc := json.NewEncoder(h)
 	for _, p := range parts {
 		if err := enc.Encode(p); err != nil {

@@ -121,6 +121,11 @@ type Scanner struct {
 	EchoTrain    int     `toml:"echo_train"`
 	Averages     int     `toml:"averages"`
 	ReferenceSNR float64 `toml:"reference_snr"`
+	// Receive coils: 1 is a single uniform coil; more are a ring array.
+	Coils int `toml:"coils"`
+	// CoilCorrelation is the noise correlation between neighbouring coils
+	// of the ring (0 for independent coil noise).
+	CoilCorrelation float64 `toml:"coil_noise_correlation"`
 	// Gradient limits and sampling of spiral designs.
 	MaxGradient  float64 `toml:"max_gradient_mt_per_m"`
 	MaxSlew      float64 `toml:"max_slew_t_per_m_per_s"`
@@ -195,6 +200,7 @@ const (
 	MethodTV           = "tv-pdhg"
 	MethodTGV          = "tgv-pdhg"
 	MethodADMMWavelet  = "admm-wavelet"
+	MethodCGSENSE      = "cg-sense"
 
 	RuleCalibration = "calibration"
 	RuleDiscrepancy = "discrepancy"
@@ -209,11 +215,21 @@ const (
 var (
 	patterns    = []string{PatternUniform, PatternRandom, PatternRadial, PatternSpiral, PatternFan, PatternFanGolden}
 	spokeOrders = []string{"golden", "tiny-golden", "uniform", "rational-golden"}
-	methods     = []string{MethodZeroFilled, MethodFISTAWavelet, MethodTikhonov, MethodTV, MethodTGV, MethodADMMWavelet, MethodFISTABox}
+	methods     = []string{MethodZeroFilled, MethodFISTAWavelet, MethodTikhonov, MethodTV, MethodTGV, MethodADMMWavelet, MethodCGSENSE, MethodFISTABox}
 	metrics     = []string{MetricSSIM, MetricPSNR, MetricNRMSE}
 	phantoms    = []string{"modified-shepp-logan"}
 	wavelets    = []string{"haar", "db2", "db3", "db4", "db5", "db6", "db7", "db8"}
 )
+
+// usesSENSE reports whether a plan reconstructs with CG-SENSE.
+func usesSENSE(p *Plan) bool {
+	for _, r := range p.Recons {
+		if r.Method == MethodCGSENSE {
+			return true
+		}
+	}
+	return false
+}
 
 // methodTitle is the label of a method that the plan leaves unlabelled.
 func methodTitle(r Recon) string {
@@ -488,6 +504,15 @@ func (v *validator) plan(p *Plan) {
 	if s.Averages < 1 || s.Averages > 64 {
 		v.fail("scanner", -1, "averages", fmt.Sprintf("must be between 1 and 64, got %d", s.Averages), "")
 	}
+	if s.Coils == 0 {
+		s.Coils = 1
+	}
+	if s.Coils < 1 || s.Coils > 64 {
+		v.fail("scanner", -1, "coils", fmt.Sprintf("must be between 1 and 64, got %d", s.Coils), "1 for a single uniform coil, e.g. 8 for a ring array")
+	}
+	if !(s.CoilCorrelation >= 0) || s.CoilCorrelation >= 1 || (s.CoilCorrelation > 0 && s.Coils < 2) {
+		v.fail("scanner", -1, "coil_noise_correlation", fmt.Sprintf("must lie in [0, 1) with 2 or more coils, got %v", s.CoilCorrelation), "0.1 to 0.3 is typical of neighbouring coils")
+	}
 	if !(s.ReferenceSNR > 0) || !finite(s.ReferenceSNR) || s.ReferenceSNR > 1e6 {
 		v.fail("scanner", -1, "reference_snr", fmt.Sprintf("must be a positive number, got %v", s.ReferenceSNR),
 			"mean signal in the object over the image noise σ of the fully sampled scan; 20 to 100 is typical")
@@ -595,6 +620,9 @@ func (v *validator) scheme(p *Plan, i int) {
 			v.fail("scheme", i, "accelerations", fmt.Sprintf("R = %v is below 1", r), "R = full lines / acquired lines, so R ≥ 1")
 		case r > float64(ny):
 			v.fail("scheme", i, "accelerations", fmt.Sprintf("R = %v is above the %d phase-encode lines", r, ny), "R can be at most the number of lines")
+		case s.Pattern == PatternUniform && p.Scanner.Coils > 1 && r > float64(p.Scanner.Coils) && usesSENSE(p):
+			v.fail("scheme", i, "accelerations", fmt.Sprintf("R = %v cannot be unfolded by SENSE with %d coils", r, p.Scanner.Coils),
+				fmt.Sprintf("uniform undersampling by R needs at least R receive coils: keep R ≤ %d or raise scanner.coils", p.Scanner.Coils))
 		case s.Pattern == PatternUniform && r != math.Trunc(r):
 			v.fail("scheme", i, "accelerations", fmt.Sprintf("R = %v is not a whole number", r), "pattern "+PatternUniform+" keeps every R-th line; use "+PatternRandom+" for fractional R")
 		case s.Pattern == PatternRandom && int(math.Round(float64(ny)/r)) < s.CalibrationLines:
@@ -747,6 +775,10 @@ func (v *validator) recon(p *Plan, i int) {
 		v.boxRecon(p, i)
 		return
 	}
+	if r.Method == MethodCGSENSE && p.Scanner.Coils < 2 {
+		v.fail("recon", i, "method", "cg-sense needs a receive array", "set scanner.coils to 2 or more, or choose another method")
+		return
+	}
 	if r.Method == MethodZeroFilled {
 		for _, k := range []struct {
 			set  bool
@@ -841,7 +873,7 @@ func (v *validator) iterLambda(p *Plan, i int) {
 	}
 	if r.LambdaLook == nil && r.Lambda == 0 {
 		r.LambdaLook = []float64{1e-4, 1e-1}
-		if r.Method == MethodTikhonov {
+		if r.Method == MethodTikhonov || r.Method == MethodCGSENSE {
 			r.LambdaLook = []float64{1e-4, 10}
 		}
 	}

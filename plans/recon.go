@@ -20,6 +20,7 @@ type solver struct {
 	tv   map[*encoding]*priors.TVSolver
 	tgv  map[*encoding]*priors.TGVSolver
 	admm map[*encoding]*priors.ADMM
+	cgs  map[*encoding]*priors.CGSENSE
 }
 
 func (w *workerState) solverFor(ri int) (*solver, error) {
@@ -30,9 +31,10 @@ func (w *workerState) solverFor(ri int) (*solver, error) {
 	n := w.env.ny * w.env.nx
 	s := &solver{rc: rc, zf: make([]complex128, n), x: make([]complex128, n),
 		tik: map[*encoding]*priors.TikhonovSolver{}, tv: map[*encoding]*priors.TVSolver{},
-		tgv: map[*encoding]*priors.TGVSolver{}, admm: map[*encoding]*priors.ADMM{}}
+		tgv: map[*encoding]*priors.TGVSolver{}, admm: map[*encoding]*priors.ADMM{},
+		cgs: map[*encoding]*priors.CGSENSE{}}
 	switch rc.Method {
-	case MethodZeroFilled, MethodTikhonov, MethodTV, MethodTGV:
+	case MethodZeroFilled, MethodTikhonov, MethodTV, MethodTGV, MethodCGSENSE:
 	case MethodFISTAWavelet, MethodADMMWavelet:
 		p, err := priors.NewWaveletL1(w.env.ny, w.env.nx, rc.Levels, rc.Wavelet)
 		if err != nil {
@@ -134,6 +136,26 @@ func (w *workerState) reconstruct(ri int, enc *encoding, y []complex128, lambda 
 			return nil, 0, fmt.Errorf("recon %q: %w", s.rc.Label, err)
 		}
 		return s.x, rep.Iterations, nil
+	case MethodCGSENSE:
+		// CG on (EᴴE + λI)x = Eᴴy with the intensity-correction
+		// preconditioner (Pruessmann 2001); λ is dimensionless.
+		cs, ok := s.cgs[enc]
+		if !ok {
+			d, err := priors.IntensityCorrection(w.env.maps)
+			if err != nil {
+				return nil, 0, err
+			}
+			if cs, err = priors.NewCGSENSE(enc.op, d); err != nil {
+				return nil, 0, fmt.Errorf("recon %q: %w", s.rc.Label, err)
+			}
+			s.cgs[enc] = cs
+		}
+		clear(s.x)
+		rep, err := cs.Solve(s.x, y, lambda, priors.CGOptions{MaxIter: s.rc.Iterations, Tol: 1e-6})
+		if err != nil {
+			return nil, 0, fmt.Errorf("recon %q: %w", s.rc.Label, err)
+		}
+		return s.x, rep.Iterations, nil
 	case MethodADMMWavelet:
 		as, ok := s.admm[enc]
 		if !ok {
@@ -165,8 +187,18 @@ func (w *workerState) reconstruct(ri int, enc *encoding, y []complex128, lambda 
 }
 
 // adjoint writes the adjoint image of y into s.zf: Eᴴy, or EᴴWy with the
-// density compensation of a non-Cartesian trajectory.
+// density compensation of a non-Cartesian trajectory; with a receive array
+// the coil images are combined with their sensitivities and divided by
+// Σ|S_c|², so that full sampling returns the object itself (the matched-filter
+// combination of Roemer PB et al., MRM 1990;16:192-225, for white noise).
 func (w *workerState) adjoint(s *solver, enc *encoding, y []complex128) {
+	defer func() {
+		if c := w.env.combine; c != nil {
+			for i := range s.zf {
+				s.zf[i] *= complex(c[i], 0)
+			}
+		}
+	}()
 	if enc.weights == nil {
 		enc.op.Adjoint(s.zf, y)
 		return

@@ -418,6 +418,12 @@ type runEnv struct {
 	// MRI: the analytic phantom and its spectrum on the centred grid.
 	phantom  simulate.Phantom
 	spectrum []complex128
+	// MRI with a receive array: the coils, their maps on the grid and the
+	// coil noise covariance (nil coils: one uniform coil).
+	coils     *simulate.CoilArray
+	maps      [][]complex128
+	coilNoise *simulate.NoiseCovariance
+	combine   []float64 // 1/Σ|S_c|² per pixel: the adjoint's coil combination made unbiased
 	// ODT: the instrument and the specimen.
 	setup    odt.Setup
 	specimen odt.Specimen
@@ -456,6 +462,29 @@ func (env *runEnv) setScene() error {
 		// The noiseless spectrum on the whole centred grid, drawn from the
 		// analytic phantom once and shared read-only by every worker.
 		env.spectrum = simulate.CartesianSpectrum(ph, nx, ny)
+		if n := p.Scanner.Coils; n > 1 {
+			if env.coils, err = simulate.DefaultCoilRing(n).Build(); err != nil {
+				return err
+			}
+			if env.maps, err = env.coils.Maps(ny, nx); err != nil {
+				return err
+			}
+			var psi []complex128
+			if rho := p.Scanner.CoilCorrelation; rho > 0 {
+				psi = simulate.RingNoiseCovariance(n, rho)
+			}
+			if env.coilNoise, err = simulate.NewNoiseCovariance(n, psi); err != nil {
+				return err
+			}
+			d, err := priors.IntensityCorrection(env.maps)
+			if err != nil {
+				return err
+			}
+			env.combine = make([]float64, len(d))
+			for i, v := range d {
+				env.combine[i] = v * v
+			}
+		}
 	}
 	lo, hi := math.Inf(1), math.Inf(-1)
 	for _, v := range o.Truth {
@@ -497,7 +526,18 @@ func (w *workerState) draw(ci int, key string) (*encoding, []complex128, uint64,
 	rng := rand.New(rand.NewPCG(seed, seed^0x5851f42d4c957f2d))
 	y := make([]complex128, len(e.clean))
 	copy(y, e.clean)
-	simulate.AddNoise(y, w.env.out.Sigma, rng)
+	if nc := w.env.coilNoise; nc != nil {
+		// Coil noise of covariance 2σ²Ψ, then the data (signal and noise
+		// alike) whitened as the operator is.
+		if err := nc.AddNoise(y, w.env.out.Sigma, rng); err != nil {
+			return nil, nil, 0, err
+		}
+		if err := nc.Whiten(y); err != nil {
+			return nil, nil, 0, err
+		}
+	} else {
+		simulate.AddNoise(y, w.env.out.Sigma, rng)
+	}
 	return e, y, seed, nil
 }
 
