@@ -39,8 +39,7 @@ type Plan2D struct {
 	block      int // columns per block, see columnBlock
 	centre     centring
 	shiftBuf   []complex128 // ny·nx, only for centring by explicit shifts
-	scaleY     float64
-	scaleX     float64
+	scale      float64      // (ny·nx)^(-1/2), applied once, by the column pass
 }
 
 // centring is how a Plan2D computes its centred transforms.
@@ -75,15 +74,14 @@ func newPlan2DFrom(ny, nx int, rows, cols *tables) *Plan2D {
 	b := columnBlock(ny, nx)
 	p := &Plan2D{
 		ny: ny, nx: nx, rows: rows, cols: cols,
-		block:  b,
-		rowA:   make([]complex128, nx),
-		rowB:   make([]complex128, nx),
-		blkA:   make([]complex128, ny*b),
-		blkB:   make([]complex128, ny*b),
-		rowWk:  rows.newWork(),
-		colWk:  cols.newWork(),
-		scaleY: 1 / math.Sqrt(float64(ny)),
-		scaleX: 1 / math.Sqrt(float64(nx)),
+		block: b,
+		rowA:  make([]complex128, nx),
+		rowB:  make([]complex128, nx),
+		blkA:  make([]complex128, ny*b),
+		blkB:  make([]complex128, ny*b),
+		rowWk: rows.newWork(),
+		colWk: cols.newWork(),
+		scale: 1 / math.Sqrt(float64(ny)*float64(nx)),
 	}
 	switch {
 	case rows.rotatable && cols.rotatable:
@@ -177,11 +175,11 @@ func (p *Plan2D) transform(dst, src []complex128, inv, centred bool) {
 		w := min(p.block, nx-c0)
 		a := p.blkA[:ny*w]
 		b := p.blkB[:ny*w]
-		p.cols.exec(dst[c0:], src[c0:], a, b, layout{s0: w, ldIn: nx, ldOut: nx}, inv, centred, p.scaleY, &p.colWk)
+		p.cols.exec(dst[c0:], src[c0:], a, b, layout{s0: w, ldIn: nx, ldOut: nx}, inv, centred, p.scale, &p.colWk)
 	}
 	for i := range ny {
 		row := dst[i*nx : (i+1)*nx]
-		p.rows.exec(row, row, p.rowA, p.rowB, contiguous(1), inv, centred, p.scaleX, &p.rowWk)
+		p.rows.exec(row, row, p.rowA, p.rowB, contiguous(1), inv, centred, 1, &p.rowWk)
 	}
 }
 
@@ -197,7 +195,7 @@ func (p *Plan2D) modulated(dst, src []complex128, inv bool) {
 		b := p.blkB[:ny*w]
 		gatherMod(a, src, ny, nx, c0, w)
 		// b is the first intermediate; a, consumed by then, the second.
-		p.cols.exec(dst[c0:], a, b, a, layout{s0: w, ldIn: w, ldOut: nx}, inv, false, p.scaleY, &p.colWk)
+		p.cols.exec(dst[c0:], a, b, a, layout{s0: w, ldIn: w, ldOut: nx}, inv, false, p.scale, &p.colWk)
 	}
 	sign := 1.0
 	if (ny/2+nx/2)%2 == 1 {
@@ -205,7 +203,7 @@ func (p *Plan2D) modulated(dst, src []complex128, inv bool) {
 	}
 	for k := range ny {
 		row := dst[k*nx : (k+1)*nx]
-		p.rows.exec(row, row, p.rowA, p.rowB, contiguous(1), inv, false, p.scaleX, &p.rowWk)
+		p.rows.exec(row, row, p.rowA, p.rowB, contiguous(1), inv, false, 1, &p.rowWk)
 		sg := sign
 		if k%2 == 1 {
 			sg = -sg

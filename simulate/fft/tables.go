@@ -375,29 +375,54 @@ func (st *stage) geometry(g *geom, first, last bool, l layout, inv, centred bool
 func run(st *stage, y, x []complex128, tw []float64, g *geom, wk *work) {
 	switch st.radix {
 	case 8:
+		r8notw(y, x, g, 1)
 		if g.s == 1 && g.xstep == 1 {
 			r8s1(y, x, tw, g)
 		} else {
 			r8(y, x, tw, g)
 		}
 	case 4:
+		r4notw(y, x, g, 1)
 		if g.s == 1 && g.xstep == 1 {
 			r4s1(y, x, tw, g)
 		} else {
 			r4(y, x, tw, g)
 		}
 	case 2:
+		r2notw(y, x, g, 1)
 		r2(y, x, tw, g)
 	case 3:
+		r3notw(y, x, g, 1)
 		r3(y, x, tw, g)
 	case 5:
+		r5notw(y, x, g, 1)
 		r5(y, x, tw, g)
 	default:
 		rgen(y, x, tw, g, st.radix, st.gen, wk.gen)
 	}
 }
 
+// runLast executes the last pass (no twiddles), scaling unless scale is 1.
 func runLast(st *stage, y, x []complex128, g *geom, scale float64, wk *work) {
+	if scale == 1 {
+		switch st.radix {
+		case 8:
+			r8notw(y, x, g, g.m)
+			return
+		case 4:
+			r4notw(y, x, g, g.m)
+			return
+		case 2:
+			r2notw(y, x, g, g.m)
+			return
+		case 3:
+			r3notw(y, x, g, g.m)
+			return
+		case 5:
+			r5notw(y, x, g, g.m)
+			return
+		}
+	}
 	switch st.radix {
 	case 8:
 		r8last(y, x, g, scale)
