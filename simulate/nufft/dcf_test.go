@@ -275,7 +275,7 @@ func TestPipeMenonFullCartesian(t *testing.T) {
 		// Per axis: ∫C = Φ² grid cells of ½ cycle/FOV.
 		want := (phi * phi / 2 / den) * (phi * phi / 2 / den)
 		lo, hi := slices.Min(w), slices.Max(w)
-		t.Logf("W=%d: weights in [%.6f, %.6f], lattice fixed point %.6f, Σw = %.2f (grid %d)", width, lo, hi, want, sum(w), n*n)
+		t.Logf("W=%d: weights in [%.6f, %.6f], lattice fixed point %.6f, Σw = %.2f (grid %d)", width, lo, hi, want, sumOf(w), n*n)
 		if hi-lo > 1e-12*hi {
 			t.Errorf("W=%d: weights spread over [%g, %g], want all equal", width, lo, hi)
 		}
@@ -311,7 +311,7 @@ func TestKernelAreaRipple(t *testing.T) {
 		worst := 0.0
 		for i := range p.samples {
 			wt := p.weights[2*w*i : 2*w*(i+1)]
-			worst = max(worst, math.Abs(sum(wt[:w])/phi-1), math.Abs(sum(wt[w:])/phi-1))
+			worst = max(worst, math.Abs(sumOf(wt[:w])/phi-1), math.Abs(sumOf(wt[w:])/phi-1))
 		}
 		t.Logf("W=%d: kernel sum ripple %.2e, Poisson bound %.2e", w, worst, bound)
 		if worst > bound+1e-12 {
@@ -323,14 +323,14 @@ func TestKernelAreaRipple(t *testing.T) {
 // TestPipeMenonMatchesRadialRamp compares the iteration (default width and
 // iterations) with the analytic ramp on Nyquist-sampled radial trajectories
 // with uniform angles. Away from DC both estimate the same cell areas, and
-// must agree to 0.5 % (measured 0.15 %). Excluded are the samples within
+// must agree to 0.5 % (measured 0.23 %). Excluded are the samples within
 // 4 cycles/FOV of DC, one reach of the kernel C (W = 8 cells of ½ cycle),
 // where the iteration shares weight differently between the DC sample and
 // the first rings (both shares are valid quadratures: the flat-image test
 // scores them), and those within 6 cycles/FOV of the band edge, where the
 // border of the covered region pulls the iteration's weights. The sums over
 // the whole trajectory must agree within 2 % (the iteration counts the
-// border ring softened by the kernel; measured 1.4 %).
+// border ring softened by the kernel; measured 1.4 % and 1.5 %).
 func TestPipeMenonMatchesRadialRamp(t *testing.T) {
 	const n = 128
 	for _, c := range nyquistRadial(t) {
@@ -357,11 +357,11 @@ func TestPipeMenonMatchesRadialRamp(t *testing.T) {
 			q := w[j] / ramp[j]
 			lo, hi = min(lo, q), max(hi, q)
 		}
-		t.Logf("%s: Pipe-Menon / ramp in [%.4f, %.4f] for 4 ≤ |k| ≤ %d; sums %.1f and %.1f", c.name, lo, hi, n/2-6, sum(w), sum(ramp))
+		t.Logf("%s: Pipe-Menon / ramp in [%.4f, %.4f] for 4 ≤ |k| ≤ %d; sums %.1f and %.1f", c.name, lo, hi, n/2-6, sumOf(w), sumOf(ramp))
 		if lo < 0.995 || hi > 1.005 {
 			t.Errorf("%s: Pipe-Menon weights %.4f to %.4f times the ramp, want within 0.5 %%", c.name, lo, hi)
 		}
-		if r := sum(w) / sum(ramp); math.Abs(r-1) > 0.02 {
+		if r := sumOf(w) / sumOf(ramp); math.Abs(r-1) > 0.02 {
 			t.Errorf("%s: Pipe-Menon weights sum to %.4f times the ramp's", c.name, r)
 		}
 	}
@@ -433,12 +433,12 @@ func TestGriddedImageIsFlat(t *testing.T) {
 				y[j] *= complex(s.w[j], 0)
 			}
 			p.Adjoint(delta, y)
-			peak, want := real(delta[(n/2)*n+n/2]), sum(s.w)/(n*n)
+			peak, want := real(delta[(n/2)*n+n/2]), sumOf(s.w)/(n*n)
 			if math.Abs(peak/want-1) > 1e-6 {
 				t.Errorf("%s: PSF peak %.8f, want Σw/N = %.8f", s.name, peak, want)
 			}
-			if math.Abs(sum(s.w)/disc-1) > 0.02 {
-				t.Errorf("%s: Σw = %.1f, want the disc area %.1f within 2 %%", s.name, sum(s.w), disc)
+			if math.Abs(sumOf(s.w)/disc-1) > 0.02 {
+				t.Errorf("%s: Σw = %.1f, want the disc area %.1f within 2 %%", s.name, sumOf(s.w), disc)
 			}
 		}
 	}
@@ -468,6 +468,8 @@ type voronoiFixture struct {
 // its own choosing. The weights must agree with the areas to 3 % RMS and
 // their sums to 2 % (measured: spiral 1.4 % RMS and 1.2 % low, the dip
 // between arms 1 to 1.6 cycles/FOV apart; sunflower 2.2 % RMS and 0.1 %).
+// With the grid oversampled by 1.25 instead of 2 they must be farther off
+// (measured 16 % and 9 % RMS).
 func TestPipeMenonAgainstVoronoi(t *testing.T) {
 	b, err := os.ReadFile("testdata/voronoi.json")
 	if err != nil {
@@ -508,6 +510,24 @@ func TestPipeMenonAgainstVoronoi(t *testing.T) {
 		}
 		if math.Abs(sw/sa-1) > 0.02 {
 			t.Errorf("%s: Pipe-Menon weights sum to %.4f times the Voronoi areas, bar 2 %%", s.Name, sw/sa)
+		}
+		// The documented advice to keep α = 2: on the coarser grid the
+		// weights must be farther from the areas.
+		w, err = PipeMenon(fx.N, fx.N, s.Kx, s.Ky, 0, Options{Oversampling: 1.25})
+		if err != nil {
+			t.Fatal(err)
+		}
+		sq = 0
+		for j := range w {
+			if r := math.Hypot(s.Kx[j], s.Ky[j]); r >= 2 && r <= 10 {
+				q := w[j]/s.Area[j] - 1
+				sq += q * q
+			}
+		}
+		coarse := math.Sqrt(sq / float64(cnt))
+		t.Logf("%s: RMS %.4f with α = 1.25", s.Name, coarse)
+		if coarse <= rms {
+			t.Errorf("%s: α = 1.25 gives %.4f RMS, no worse than %.4f at α = 2", s.Name, coarse, rms)
 		}
 	}
 }
@@ -702,7 +722,7 @@ func TestPipeMenonUndersampledRadial(t *testing.T) {
 	}
 }
 
-func sum(v []float64) float64 {
+func sumOf(v []float64) float64 {
 	s := 0.0
 	for _, x := range v {
 		s += x

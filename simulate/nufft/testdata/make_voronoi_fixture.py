@@ -13,17 +13,20 @@ the disc |k| <= 12 so that no kernel reaches the band edge at |k| = 16:
   spiral     6 interleaves of a variable-density Archimedean spiral whose gap
              between neighbouring arms grows from 1 cycle/FOV at the centre to
              1.6 at the edge, sampled every 0.4 cycle/FOV of arc length;
-  sunflower  700 points of a variable-density Vogel spiral, r_n = 12 (n/M)^0.7,
-             turned by the golden angle 360 (1 - 1/phi) degrees per point.
+  sunflower  M = 700 points of a variable-density phyllotaxis pattern,
+             r_n = 12 ((n + 1/2)/M)^0.7, turned by the golden angle
+             360 (1 - 1/phi) degrees per point (denser towards the centre).
 
 Each point's weight is the area of its Voronoi cell. To bound the cells of
 the outermost points, a guard ring of points at radius 12 + 1 (0.5 apart) is
-added; it ends the outer cells near radius 12.5. The guard points are not
-written. Cells are convex, so each is ordered by angle around its centroid
+added; it closes the outer cells between the outermost points and the
+ring. The guard points are not written, and the test compares only points
+well inside (|k| <= 10). Cells are convex, so each is ordered by angle around its centroid
 and measured with the shoelace formula.
 """
 import json
 import math
+import sys
 
 import numpy as np
 from scipy.spatial import Voronoi
@@ -87,5 +90,5 @@ for name, p in (("spiral", spiral()), ("sunflower", sunflower())):
         "ky": [float(v) for v in p[:, 1]],
         "area": [float(v) for v in areas(p)],
     })
-json.dump({"n": 32, "rmax": RMAX, "guard": GUARD, "sets": sets}, __import__("sys").stdout, indent=0)
+json.dump({"n": 32, "rmax": RMAX, "guard": GUARD, "sets": sets}, sys.stdout, indent=0)
 print()
