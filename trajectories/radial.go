@@ -102,9 +102,14 @@ func RadialReferenceSpokes(n int, half bool) int {
 //
 // Density compensation is the area each sample covers: |k|·Δθ_j·Δk, with
 // Δk = 1/os and Δθ_j the angular width the spoke owns (half the gaps to its
-// neighbours on either side, so golden orders are handled), and the DC
-// sample's share of the central disc of radius Δk/2 (ramp filter; Kak AC,
-// Slaney M, Principles of Computerized Tomographic Imaging, 1988, ch. 3).
+// neighbours on either side, so golden orders are handled), and for the DC
+// sample its share of πΔk²/6 (ramp filter; Kak AC, Slaney M, Principles of
+// Computerized Tomographic Imaging, 1988, ch. 3). The DC weight is the one
+// that makes the trapezoidal rule of the ramp integral ∫|k|F dk exact to
+// second order (Euler-Maclaurin); the naive share of the central disc,
+// πΔk²/4, makes a gridded image about πΔk²/12·F(0) too bright — +2.4% on a
+// flat disc at twofold readout oversampling (measured against the closed-form
+// spectrum in simulate/nufft's density tests).
 //
 // Errors: N < 2; spokes < 1; unknown order; TinyN < 0; oversampling < 1 or
 // not finite.
@@ -203,10 +208,10 @@ func Radial(spec RadialSpec) (Sampling, error) {
 			switch {
 			case r != 0:
 				w = math.Abs(r) * wj * dk
-			case spec.Half: // the spoke's share of the disc of radius dk/2
-				w = wj / (2 * math.Pi) * math.Pi * dk * dk / 4
+			case spec.Half: // the spoke's share of πΔk²/6
+				w = wj / (2 * math.Pi) * math.Pi * dk * dk / 6
 			default: // a diameter owns the wedges at θ and θ + 180°
-				w = wj / math.Pi * math.Pi * dk * dk / 4
+				w = wj / math.Pi * math.Pi * dk * dk / 6
 			}
 			s.Weights = append(s.Weights, w)
 		}
