@@ -2,6 +2,7 @@ package plans
 
 import (
 	"fmt"
+	"time"
 
 	"accelplan/priors"
 	"accelplan/simulate/odt"
@@ -63,6 +64,8 @@ func (w *workerState) solverFor(ri int) (*solver, error) {
 // trajectory, with W the k-space area of each sample in (cycles/FOV)², so that
 // Σ w F(k) e^{2πik·x} approximates the inverse Fourier integral.
 func (w *workerState) reconstruct(ri int, enc *encoding, y []complex128, lambda float64) ([]complex128, int, error) {
+	t0 := time.Now()
+	defer func() { w.reconSeconds += time.Since(t0).Seconds() }()
 	s, err := w.solverFor(ri)
 	if err != nil {
 		return nil, 0, err

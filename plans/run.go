@@ -102,6 +102,13 @@ type Outcome struct {
 	// Computed and Restored count the jobs done now and taken from the
 	// journal.
 	Computed, Restored int
+	// JobSeconds is the worker time spent on the computed jobs, and
+	// ReconSeconds the part of it inside the solvers; the rest is the
+	// sweep's overhead (simulation, noise, scoring, journaling).
+	JobSeconds, ReconSeconds float64
+	// CPUSeconds is the process CPU time of the run, filled by the caller
+	// that can measure it.
+	CPUSeconds float64
 }
 
 // Options tune a run without changing its results.
@@ -340,10 +347,37 @@ func Run(ctx context.Context, p *Plan, opt Options) (*Outcome, error) {
 		workers = runtime.GOMAXPROCS(0)
 	}
 	o.Workers = workers
-	for _, stage := range [][]job{tune, score} {
-		if err := pool(ctx, workers, stage, env, tick); err != nil {
+	// One state per worker for the whole run, so operators and solvers
+	// built in the λ searches serve the scored draws too.
+	states := make([]*workerState, workers)
+	for i := range states {
+		if states[i], err = newWorkerState(env); err != nil {
 			return nil, err
 		}
+	}
+	// One queue: the λ searches first, then the scored draws; a draw whose
+	// group is still being tuned on another worker waits for it, so no
+	// worker idles at a stage boundary.
+	tuned := make([]chan struct{}, len(cands)*nr)
+	for g := range tuned {
+		tuned[g] = make(chan struct{})
+	}
+	pending := map[int]bool{}
+	for _, j := range tune {
+		pending[j.cand*nr+j.recon] = true
+	}
+	for g, ch := range tuned {
+		if !pending[g] {
+			close(ch)
+		}
+	}
+	env.tuned = tuned
+	if err := pool(ctx, states, append(tune, score...), tick); err != nil {
+		return nil, err
+	}
+	for _, ws := range states {
+		o.JobSeconds += ws.jobSeconds
+		o.ReconSeconds += ws.reconSeconds
 	}
 	o.Computed = total
 	o.Complete = missing == 0
@@ -357,27 +391,31 @@ func needsTuning(r Recon) bool {
 
 // pool runs jobs on workers goroutines, each with its own scratch. Results
 // land in slots fixed by the job, so the order of completion does not matter.
-func pool(ctx context.Context, workers int, jobs []job, env *runEnv, tick func()) error {
+func pool(ctx context.Context, states []*workerState, jobs []job, tick func()) error {
 	if len(jobs) == 0 {
 		return nil
 	}
 	ctx, cancel := context.WithCancel(ctx)
 	defer cancel()
 	next := make(chan job)
-	errs := make(chan error, workers)
+	errs := make(chan error, len(states))
 	var wg sync.WaitGroup
-	for w := 0; w < workers; w++ {
+	for _, ws := range states {
 		wg.Add(1)
 		go func() {
 			defer wg.Done()
-			ws, err := newWorkerState(env)
-			if err != nil {
-				errs <- err
-				cancel()
-				return
-			}
 			for j := range next {
-				if err := ws.do(j); err != nil {
+				if j.repeat >= 0 && ws.env.tuned != nil {
+					select {
+					case <-ws.env.tuned[j.cand*len(ws.env.plan.Recons)+j.recon]:
+					case <-ctx.Done():
+						return
+					}
+				}
+				t0 := time.Now()
+				err := ws.do(j)
+				ws.jobSeconds += time.Since(t0).Seconds()
+				if err != nil {
 					errs <- err
 					cancel()
 					return
@@ -412,6 +450,8 @@ type runEnv struct {
 	clean   *cleanData
 	ny, nx  int
 	journal *Journal
+	// tuned[g] is closed once group g = cand·len(Recons) + recon has its λ.
+	tuned []chan struct{}
 	// The scene: what is imaged and how quality is measured.
 	dataRange float64 // L of PSNR and SSIM: max − min of the truth
 	realPart  bool    // score the real part (an index contrast) instead of the magnitude
@@ -500,11 +540,13 @@ func (env *runEnv) setScene() error {
 // workerState holds one worker's operators and buffers, built once per
 // candidate and reused across its jobs.
 type workerState struct {
-	env     *runEnv
-	encs    map[int]*encoding
-	mag     []float64
-	ssim    *quality.SSIMPlan
-	solvers map[int]*solver // per recon index
+	env          *runEnv
+	jobSeconds   float64 // time in jobs
+	reconSeconds float64 // time in reconstructions
+	encs         map[int]*encoding
+	mag          []float64
+	ssim         *quality.SSIMPlan
+	solvers      map[int]*solver // per recon index
 }
 
 func newWorkerState(env *runEnv) (*workerState, error) {
@@ -669,7 +711,13 @@ func (w *workerState) tune(j job, rc Recon) error {
 	t := Tuning{Lambda: best, Rule: "tuned on a calibration noise draw (" + w.env.plan.Accept.Metric + ")",
 		Score: score, NoiseSeed: seed, Evals: tuneEvals}
 	w.env.out.Tunings[j.cand][j.recon] = t
-	return w.env.journal.record(journalEntry{Key: j.key, Tuning: &t}, nil)
+	if err := w.env.journal.record(journalEntry{Key: j.key, Tuning: &t}, nil); err != nil {
+		return err
+	}
+	if w.env.tuned != nil {
+		close(w.env.tuned[j.cand*len(w.env.plan.Recons)+j.recon])
+	}
+	return nil
 }
 
 // search returns the λ in the method's search range that gives the best

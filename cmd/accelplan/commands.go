@@ -10,6 +10,7 @@ import (
 	"runtime"
 	"strconv"
 	"strings"
+	"syscall"
 	"text/tabwriter"
 
 	"accelplan/out"
@@ -120,9 +121,13 @@ func runOrMerge(ctx context.Context, name string, args []string, stdout, stderr 
 	}
 	fmt.Fprintf(stderr, "accelplan: %s — %s on %d workers\n", p.Title, what, n)
 	bar := newProgress(stderr, *quiet)
+	cpu0 := cpuSeconds()
 	o, err := plans.Run(ctx, p, plans.Options{Workers: n, Progress: bar.update, Journal: journal,
 		Shard: opt.Shard, Shards: opt.Shards, Merge: opt.Merge})
 	bar.finish()
+	if err == nil {
+		o.CPUSeconds = cpuSeconds() - cpu0
+	}
 	if err != nil {
 		if errors.Is(err, context.Canceled) {
 			fmt.Fprintf(stderr, "accelplan: finished jobs are kept in %s; run the same command again to resume\n", jdir)
@@ -145,7 +150,7 @@ func runOrMerge(ctx context.Context, name string, args []string, stdout, stderr 
 		return err
 	}
 	printRecommendation(stdout, o, a, dir)
-	fmt.Fprintf(stdout, "(%d jobs computed, %d from the journal, %.1f s)\n\n%s\n", o.Computed, o.Restored, o.Elapsed.Seconds(), caution)
+	fmt.Fprintf(stdout, "(%d jobs computed, %d from the journal, %.1f s%s)\n\n%s\n", o.Computed, o.Restored, o.Elapsed.Seconds(), runUsage(o), caution)
 	return nil
 }
 
@@ -337,4 +342,27 @@ func duration(s float64) string {
 		return fmt.Sprintf("%.1f s", s)
 	}
 	return out.FormatMinSec(s)
+}
+
+// cpuSeconds returns the user and system CPU time of this process so far.
+func cpuSeconds() float64 {
+	var ru syscall.Rusage
+	if syscall.Getrusage(syscall.RUSAGE_SELF, &ru) != nil {
+		return 0
+	}
+	tv := func(t syscall.Timeval) float64 { return float64(t.Sec) + float64(t.Usec)/1e6 }
+	return tv(ru.Utime) + tv(ru.Stime)
+}
+
+// runUsage describes how well the sweep used the machine: CPU utilisation
+// over the workers, and the share of worker time spent outside the solvers.
+func runUsage(o *plans.Outcome) string {
+	if o.Computed == 0 || o.Elapsed <= 0 {
+		return ""
+	}
+	u := fmt.Sprintf(", CPU %.0f%% of %d cores", 100*o.CPUSeconds/(o.Elapsed.Seconds()*float64(o.Workers)), o.Workers)
+	if o.JobSeconds > 0 {
+		u += fmt.Sprintf(", %.1f%% of worker time outside reconstruction", 100*(o.JobSeconds-o.ReconSeconds)/o.JobSeconds)
+	}
+	return u
 }

@@ -224,6 +224,9 @@ type manifest struct {
 	Started    string  `json:"started"`
 	Seconds    float64 `json:"seconds"`
 	Workers    int     `json:"workers"`
+	CPUSeconds float64 `json:"cpu_seconds"`
+	// Overhead is the share of worker time outside the solvers.
+	Overhead   float64 `json:"overhead_outside_reconstruction"`
 	Candidates []struct {
 		Scheme   string  `json:"scheme"`
 		AskedR   float64 `json:"asked_R"`
@@ -261,7 +264,11 @@ func writeJSON(dir string, o *plans.Outcome, a *plans.Analysis, version string) 
 	p := o.Plan
 	m := manifest{Tool: "accelplan", Version: version, GoVersion: runtime.Version(), Plan: planName(p),
 		PlanSHA256: fmt.Sprintf("%x", sha256.Sum256(p.Text)), Seed: p.Seed, NoiseSigma: o.Sigma,
-		Started: o.Started.UTC().Format(time.RFC3339), Seconds: o.Elapsed.Seconds(), Workers: o.Workers}
+		Started: o.Started.UTC().Format(time.RFC3339), Seconds: o.Elapsed.Seconds(), Workers: o.Workers,
+		CPUSeconds: o.CPUSeconds}
+	if o.JobSeconds > 0 {
+		m.Overhead = (o.JobSeconds - o.ReconSeconds) / o.JobSeconds
+	}
 	m.Candidates = make([]struct {
 		Scheme   string  `json:"scheme"`
 		AskedR   float64 `json:"asked_R"`
