@@ -47,6 +47,9 @@ Commands:
   accelplan run [-workers N] [-out DIR] [-fresh] [-shard I/N] [-builtin NAME | PLAN.toml]
         run a plan; with no plan, the built-in demonstration plan. Finished
         jobs are journaled: an interrupted run resumes when run again
+  accelplan preview [-plan PLAN.toml -scheme N | -pattern P -matrix N] [-R R] [-wavelet-psf]
+        show one sampling scheme without a sweep: R, shots, scan time, PSF
+        side-lobe-to-peak, and pictures of the sampling and the PSF
   accelplan new [FILE.toml]
         write an annotated starter plan (to standard output without FILE)
   accelplan check [-workers N] PLAN.toml
@@ -88,6 +91,8 @@ func run(args []string, stdout, stderr io.Writer) int {
 		err = cmdRun(ctx, args[1:], stdout, stderr)
 	case "merge":
 		err = cmdMerge(ctx, args[1:], stdout, stderr)
+	case "preview":
+		err = cmdPreview(args[1:], stdout, stderr)
 	case "jobscript":
 		err = cmdJobScript(args[1:], stdout, stderr)
 	case "new":

@@ -208,3 +208,27 @@ func TestFullDiskKeepsEarlierResults(t *testing.T) {
 		t.Errorf("earlier results changed or lost (%v)", err)
 	}
 }
+
+// Regular undersampling by R without calibration lines folds the image into
+// replicas as tall as the peak (any MRI textbook), so the preview must report
+// a side-lobe-to-peak of 1 and write its pictures.
+func TestPreview(t *testing.T) {
+	dir := t.TempDir()
+	code, stdout, stderr := runCmd("preview", "-pattern", "cartesian-uniform", "-R", "4", "-calibration-lines", "0", "-matrix", "64", "-wavelet-psf", "-out", dir)
+	if code != 0 {
+		t.Fatalf("preview failed: %s", stderr)
+	}
+	for _, want := range []string{"R = 4.000 (16 of 64 lines", "side-lobe-to-peak 1.0000", "transform-domain PSF"} {
+		if !strings.Contains(stdout, want) {
+			t.Errorf("preview output lacks %q:\n%s", want, stdout)
+		}
+	}
+	for _, f := range []string{"cartesian-uniform_sampling.png", "cartesian-uniform_psf.png", "cartesian-uniform_wavelet_psf.png"} {
+		if _, err := os.Stat(filepath.Join(dir, f)); err != nil {
+			t.Errorf("missing %s", f)
+		}
+	}
+	if code, _, stderr := runCmd("preview", "-pattern", "radial", "-R", "0.5", "-out", dir); code == 0 || !strings.Contains(stderr, "accelerations") {
+		t.Errorf("R = 0.5 accepted or unclear: %q", stderr)
+	}
+}
