@@ -2,6 +2,8 @@ package priors
 
 import (
 	"math"
+	"math/cmplx"
+	"math/rand/v2"
 	"strings"
 	"testing"
 )
@@ -28,7 +30,7 @@ import (
 //     the noisy image by at least 25%.
 func TestDenoisersReduceError(t *testing.T) {
 	f := loadPnPFixture(t)
-	noisy := realToComplex(f.Noisy)
+	noisy := pnpComplex(f.Noisy)
 	out := make([]complex128, len(noisy))
 	t.Logf("noisy NRMSE %.4f", f.NoisyNRMSE)
 
@@ -69,7 +71,7 @@ func TestDenoisersReduceError(t *testing.T) {
 	}
 	sd.Gain = cs.Threshold / f.Sigma
 	sd.Denoise(out, noisy, f.Sigma)
-	if e := maxDiff(out, realToComplex(cs.Output)); e > 1e-12 {
+	if e := pnpMaxDiff(out, pnpComplex(cs.Output)); e > 1e-12 {
 		t.Errorf("cycle-spun shrinkage differs from skimage cycle_spin by %.3g", e)
 	}
 	if got := pnpRealNRMSE(out, f.Clean); got >= cs.NoSpinNRMSE || math.Abs(got-cs.NRMSE) > 1e-9 {
@@ -95,7 +97,7 @@ func TestDenoisersReduceError(t *testing.T) {
 // shift by (−a, −b) undoes it.
 func TestCircShift(t *testing.T) {
 	const ny, nx = 5, 7
-	src := seededComplex(ny*nx, 4)
+	src := pnpRandImage(ny*nx, 4)
 	for _, s := range [][2]int{{0, 0}, {1, 3}, {4, 6}, {-2, 9}, {7, -1}} {
 		dst := make([]complex128, ny*nx)
 		circShift(dst, src, ny, nx, s[0], s[1])
@@ -110,7 +112,7 @@ func TestCircShift(t *testing.T) {
 		}
 		back := make([]complex128, ny*nx)
 		circShiftAdd(back, dst, ny, nx, -s[0], -s[1])
-		if e := maxDiff(back, src); e != 0 {
+		if e := pnpMaxDiff(back, src); e != 0 {
 			t.Errorf("shift %v: unshift leaves %.3g", s, e)
 		}
 	}
@@ -130,7 +132,7 @@ func TestDenoiserConstruction(t *testing.T) {
 		t.Error("empty TV grid accepted")
 	}
 	// σ = 0 copies for every kind.
-	src := seededComplex(32*32, 8)
+	src := pnpRandImage(32*32, 8)
 	for _, kind := range DenoiserKinds() {
 		d, err := NewDenoiser(kind, 32, 32)
 		if err != nil {
@@ -138,14 +140,14 @@ func TestDenoiserConstruction(t *testing.T) {
 		}
 		out := make([]complex128, len(src))
 		d.Denoise(out, src, 0)
-		if e := maxDiff(out, src); e != 0 {
+		if e := pnpMaxDiff(out, src); e != 0 {
 			t.Errorf("%s: σ = 0 changed the image by %.3g", kind, e)
 		}
 	}
 }
 
 func TestDenoisersAllocateNothing(t *testing.T) {
-	src := seededComplex(32*32, 9)
+	src := pnpRandImage(32*32, 9)
 	dst := make([]complex128, len(src))
 	for _, kind := range DenoiserKinds() {
 		d, _ := NewDenoiser(kind, 32, 32)
@@ -154,4 +156,36 @@ func TestDenoisersAllocateNothing(t *testing.T) {
 			t.Errorf("%s: %.0f allocations per call", kind, a)
 		}
 	}
+}
+
+// Helpers of the denoiser, PnP, RED, cycle-spinning and restart tests (kept
+// here, with their own names, so these tests do not lean on other files'
+// helpers).
+
+// pnpRandImage returns n seeded complex values with standard normal parts.
+func pnpRandImage(n int, seed uint64) []complex128 {
+	rng := rand.New(rand.NewPCG(seed, 0x9a1d))
+	x := make([]complex128, n)
+	for i := range x {
+		x[i] = complex(rng.NormFloat64(), rng.NormFloat64())
+	}
+	return x
+}
+
+// pnpMaxDiff returns max_i |a_i − b_i|.
+func pnpMaxDiff(a, b []complex128) float64 {
+	var m float64
+	for i := range a {
+		m = math.Max(m, cmplx.Abs(a[i]-b[i]))
+	}
+	return m
+}
+
+// pnpComplex converts a real image.
+func pnpComplex(x []float64) []complex128 {
+	out := make([]complex128, len(x))
+	for i, v := range x {
+		out[i] = complex(v, 0)
+	}
+	return out
 }

@@ -218,7 +218,7 @@ func TestNLMMatchesDirectSum(t *testing.T) {
 	}
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {
-			src := seededComplex(c.ny*c.nx, 97)
+			src := pnpRandImage(c.ny*c.nx, 97)
 			d, err := NewNLM(c.ny, c.nx, c.opt)
 			if err != nil {
 				t.Fatal(err)
@@ -226,13 +226,13 @@ func TestNLMMatchesDirectSum(t *testing.T) {
 			got := make([]complex128, len(src))
 			d.Denoise(got, src, c.sigma)
 			want := nlmDirect(src, c.ny, c.nx, c.opt, c.sigma)
-			if e := maxDiff(got, want); e > 1e-12 {
+			if e := pnpMaxDiff(got, want); e > 1e-12 {
 				t.Errorf("max |fast − direct| = %.3g", e)
 			}
 			// In place gives the same.
 			in := append([]complex128(nil), src...)
 			d.Denoise(in, in, c.sigma)
-			if e := maxDiff(in, got); e != 0 {
+			if e := pnpMaxDiff(in, got); e != 0 {
 				t.Errorf("in-place result differs by %.3g", e)
 			}
 		})
@@ -255,7 +255,7 @@ func skimageNLMH(hFactor float64, patchSize int) float64 {
 func nlmFixtureRun(t *testing.T, f *pnpFixture, kind string, patchSize, dist int, hFactor float64) ([]complex128, float64) {
 	t.Helper()
 	opt := NLMOptions{PatchRadius: patchSize / 2, SearchRadius: dist, HFactor: hFactor, Mode: NLMReal}
-	src := realToComplex(f.Noisy)
+	src := pnpComplex(f.Noisy)
 	if kind == "complex" {
 		opt.Mode = NLMComplex
 		src = f.complexNoisy()
@@ -302,7 +302,7 @@ func TestNLMAgainstSkimage(t *testing.T) {
 				if err := json.Unmarshal(c.Output, &v); err != nil {
 					t.Fatal(err)
 				}
-				sk, truth = realToComplex(v), realToComplex(f.Clean)
+				sk, truth = pnpComplex(v), pnpComplex(f.Clean)
 			} else {
 				var v struct{ Re, Im []float64 }
 				if err := json.Unmarshal(c.Output, &v); err != nil {
@@ -372,19 +372,19 @@ func TestNLMProperties(t *testing.T) {
 		}
 		out := make([]complex128, len(c))
 		d.Denoise(out, c, 0.1)
-		if e := maxDiff(out, c); e > 1e-14 {
+		if e := pnpMaxDiff(out, c); e > 1e-14 {
 			t.Errorf("%v: constant image moved by %.3g", mode, e)
 		}
-		src := seededComplex(ny*nx, 5)
+		src := pnpRandImage(ny*nx, 5)
 		d.Denoise(out, src, 0.2)
 		d2, _ := NewNLM(ny, nx, NLMOptions{Mode: mode})
 		out2 := make([]complex128, len(c))
 		d2.Denoise(out2, src, 0.2)
-		if e := maxDiff(out, out2); e != 0 {
+		if e := pnpMaxDiff(out, out2); e != 0 {
 			t.Errorf("%v: two runs differ by %.3g", mode, e)
 		}
 		d.Denoise(out, src, 0)
-		if e := maxDiff(out, src); e != 0 {
+		if e := pnpMaxDiff(out, src); e != 0 {
 			t.Errorf("%v: σ = 0 changed the image by %.3g", mode, e)
 		}
 	}
@@ -421,7 +421,7 @@ func TestNLMRejects(t *testing.T) {
 
 func TestNLMAllocatesNothing(t *testing.T) {
 	d, _ := NewNLM(32, 40, DefaultNLMOptions())
-	src := seededComplex(32*40, 3)
+	src := pnpRandImage(32*40, 3)
 	dst := make([]complex128, len(src))
 	if a := testing.AllocsPerRun(3, func() { d.Denoise(dst, src, 0.1) }); a != 0 {
 		t.Errorf("Denoise allocates %.0f times per call", a)
