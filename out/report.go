@@ -133,6 +133,15 @@ type ReportCandidate struct {
 	// MaskCaption names the sampling picture: "sampling mask" when empty;
 	// "trajectory" suits non-Cartesian schemes.
 	MaskCaption string
+	// Extra figures shown after the five standard ones, e.g. noise maps.
+	Extra []ReportFigure
+}
+
+// ReportFigure is one additional picture of a candidate.
+type ReportFigure struct {
+	Caption string
+	Note    string // e.g. the scale; may be empty
+	PNG     []byte
 }
 
 // ReportValue is the statistics of one quality metric of a candidate over
@@ -687,6 +696,16 @@ func buildCandidate(k, i int, c ReportCandidate, r Report, metric string, shared
 			return candView{}, fmt.Errorf("out: report %s has an error map but the report's shared error scale (ErrorLimit) is not set", what)
 		}
 		cv.Figures = append(cv.Figures, fv)
+	}
+	for _, f := range c.Extra {
+		if f.PNG == nil {
+			return candView{}, fmt.Errorf("out: report %s: extra figure %q has no image", what, f.Caption)
+		}
+		src, err := pngDataURI(what+" "+f.Caption, f.PNG)
+		if err != nil {
+			return candView{}, err
+		}
+		cv.Figures = append(cv.Figures, figView{Kind: "extra", Caption: f.Caption, Note: f.Note, Alt: f.Caption + " of " + label, Src: src})
 	}
 	return cv, nil
 }

@@ -99,6 +99,7 @@ func (v *validator) odt(p *Plan) {
 		v.recon(p, i)
 	}
 	v.accept(p)
+	v.noiseMaps(p)
 }
 
 func (v *validator) odtScheme(p *Plan, i int) {

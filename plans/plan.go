@@ -85,6 +85,8 @@ type Plan struct {
 	Schemes []Scheme   `toml:"scheme"`
 	Recons  []Recon    `toml:"recon"`
 	Accept  Acceptance `toml:"accept"`
+	// NoiseMaps asks for pseudo-replica noise maps of chosen points.
+	NoiseMaps []NoiseMapSpec `toml:"noise_map"`
 
 	// Source is the file the plan was read from ("built-in" for the built-in
 	// plan); Text is its content, kept for hashing and the manifest.
@@ -530,6 +532,7 @@ func (v *validator) plan(p *Plan) {
 		v.recon(p, i)
 	}
 	v.accept(p)
+	v.noiseMaps(p)
 }
 
 // accept checks the acceptance bar.

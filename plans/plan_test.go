@@ -188,3 +188,42 @@ func TestSENSEUnfolds(t *testing.T) {
 		t.Errorf("CG-SENSE NRMSE %.3f not below half the zero-filled %.3f", cg, zf)
 	}
 }
+
+// Noise maps by pseudo-replicas (Robson et al. 2008): the analytic SENSE
+// g-factor is at least 1 everywhere (Pruessmann et al. 1999), the SNR map is
+// positive inside the object, and unknown points are refused.
+func TestNoiseMaps(t *testing.T) {
+	text := strings.NewReplacer("reference_snr = 30", "reference_snr = 40\ncoils = 8",
+		"accelerations = [1, 2]", "accelerations = [2]",
+		"calibration_lines = 8", "calibration_lines = 0",
+		"[[recon]]\nmethod = \"zero-filled\"", "[[recon]]\nmethod = \"cg-sense\"\nlambda = 0.001\niterations = 30").Replace(minimal) +
+		"\n[[noise_map]]\nscheme = \"cartesian-uniform 1\"\nR = 2\nrecon = \"cg-sense\"\nreplicas = 12\n"
+	p, err := Parse("m.toml", []byte(text))
+	if err != nil {
+		t.Fatal(err)
+	}
+	o, err := Run(context.Background(), p, Options{Workers: 2})
+	if err != nil {
+		t.Fatal(err)
+	}
+	maps, err := NoiseMaps(context.Background(), o)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(maps) != 1 || maps[0].GAnalytic == nil || maps[0].GReplica == nil || !(maps[0].MeanSNR > 0) {
+		t.Fatalf("incomplete noise map %+v", maps)
+	}
+	for i, in := range o.Support {
+		if in && maps[0].GAnalytic[i] < 1-1e-9 {
+			t.Fatalf("analytic g = %v < 1 at pixel %d", maps[0].GAnalytic[i], i)
+		}
+	}
+	again, _ := NoiseMaps(context.Background(), o)
+	if again[0].MeanSNR != maps[0].MeanSNR {
+		t.Error("noise maps are not reproducible")
+	}
+	bad := strings.Replace(text, "R = 2\nrecon", "R = 3\nrecon", 1)
+	if _, err := Parse("m.toml", []byte(bad)); err == nil || !strings.Contains(err.Error(), "noise_map[1].R") {
+		t.Errorf("a noise map at an R the scheme lacks was accepted: %v", err)
+	}
+}

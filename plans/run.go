@@ -109,6 +109,9 @@ type Outcome struct {
 	// CPUSeconds is the process CPU time of the run, filled by the caller
 	// that can measure it.
 	CPUSeconds float64
+	// NoiseMaps holds the maps the plan asks for (see NoiseMaps), filled
+	// by the caller after the run.
+	NoiseMaps []NoiseMap
 }
 
 // Options tune a run without changing its results.

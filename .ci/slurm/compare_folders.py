@@ -9,7 +9,8 @@ Python standard library only (run as /usr/bin/python3).
 
 Every file of the folder is compared byte for byte, except for the fields
 that record when and how fast the run went:
-  manifest.json  the top-level keys "started", "seconds" and "workers" are
+  manifest.json  the top-level keys "started", "seconds", "workers", "cpu_seconds" and
+                 "overhead_outside_reconstruction" (run conditions) are
                  dropped; every other key (plan hash, seeds, λ per candidate,
                  ...) must be equal after JSON parsing;
   results.csv    the recon_seconds column is dropped; every other cell must
@@ -30,7 +31,7 @@ import shutil
 import sys
 import tempfile
 
-MANIFEST_TIMING_KEYS = ("started", "seconds", "workers")
+MANIFEST_TIMING_KEYS = ("started", "seconds", "workers", "cpu_seconds", "overhead_outside_reconstruction")
 CSV_TIMING_COLUMN = "recon_seconds"
 REPORT_TIMING = [
     re.compile(rb"<dt>(workers|run time|generated)</dt><dd>[^<]*</dd>"),

@@ -143,6 +143,12 @@ func runOrMerge(ctx context.Context, name string, args []string, stdout, stderr 
 		return nil
 	}
 	a := plans.Analyse(o)
+	if len(p.NoiseMaps) > 0 {
+		fmt.Fprintf(stderr, "accelplan: noise maps by pseudo-replicas for %d points\n", len(p.NoiseMaps))
+		if o.NoiseMaps, err = plans.NoiseMaps(ctx, o); err != nil {
+			return err
+		}
+	}
 	if err := writeFolder(stage.Dir(), o, a, version, caution); err != nil {
 		return err
 	}

@@ -8,6 +8,7 @@ import (
 	"os"
 	"path/filepath"
 	"runtime"
+	"sort"
 	"strconv"
 	"strings"
 	"time"
@@ -148,6 +149,9 @@ func writeFolder(dir string, o *plans.Outcome, a *plans.Analysis, version, cauti
 		}
 	}
 	if err := writeReport(dir, o, a, version, caution); err != nil {
+		return err
+	}
+	if err := writeNoiseMaps(dir, o); err != nil {
 		return err
 	}
 	var b strings.Builder
@@ -316,3 +320,84 @@ func writeJSON(dir string, o *plans.Outcome, a *plans.Analysis, version string) 
 // the plan was given by; plan.toml in the folder and the manifest's SHA-256
 // identify its content.
 func planName(p *plans.Plan) string { return filepath.Base(p.Source) }
+
+// noiseImage is one picture of a noise map with its display window.
+type noiseImage struct {
+	name, caption, note string
+	img                 []float64
+	lo, hi              float64
+}
+
+// noiseImages lists the pictures of a noise map: the SNR map on 0 … its 99th
+// percentile inside the object, the g-factor maps on 1 … their maximum.
+func noiseImages(nm plans.NoiseMap) []noiseImage {
+	hi := percentile(nm.SNR, 0.99)
+	ims := []noiseImage{{"snr", "SNR map (pseudo-replicas)", fmt.Sprintf("%d replicas, 0 … %.3g, mean %.3g", nm.Replicas, hi, nm.MeanSNR), nm.SNR, 0, hi}}
+	for _, g := range []struct {
+		name, caption string
+		m             []float64
+		mean          float64
+	}{{"g_analytic", "g-factor (SENSE formula)", nm.GAnalytic, nm.MeanG}, {"g_replica", "g-factor (pseudo-replicas)", nm.GReplica, nm.MeanGReplica}} {
+		if g.m == nil {
+			continue
+		}
+		ghi := 1.0
+		for _, v := range g.m {
+			if !math.IsNaN(v) && !math.IsInf(v, 0) {
+				ghi = math.Max(ghi, v)
+			}
+		}
+		clean := make([]float64, len(g.m))
+		for i, v := range g.m {
+			if math.IsNaN(v) || math.IsInf(v, 0) {
+				v = ghi
+			}
+			clean[i] = v
+		}
+		ims = append(ims, noiseImage{g.name, g.caption, fmt.Sprintf("1 … %.3g, mean %.3g in the object", ghi, g.mean), clean, 1, math.Max(ghi, 1+1e-9)})
+	}
+	return ims
+}
+
+func percentile(x []float64, q float64) float64 {
+	var v []float64
+	for _, a := range x {
+		if a > 0 && !math.IsInf(a, 0) && !math.IsNaN(a) {
+			v = append(v, a)
+		}
+	}
+	if len(v) == 0 {
+		return 1
+	}
+	sort.Float64s(v)
+	return v[int(q*float64(len(v)-1))]
+}
+
+// writeNoiseMaps writes the noise-map pictures and their summary.
+func writeNoiseMaps(dir string, o *plans.Outcome) error {
+	if len(o.NoiseMaps) == 0 {
+		return nil
+	}
+	p := o.Plan
+	ny, nx := p.Object.PhaseLines, p.Object.ReadoutPoints
+	header := []string{"scheme", "asked_R", "method", "replicas", "mean_snr", "mean_g_analytic", "mean_g_replica"}
+	var rows [][]string
+	for _, nm := range o.NoiseMaps {
+		stem := imageName(o, nm.Candidate, nm.Recon)
+		for _, im := range noiseImages(nm) {
+			if err := out.WriteGrayPNG(filepath.Join(dir, "images", stem+"_"+im.name+".png"), im.img, ny, nx, im.lo, im.hi); err != nil {
+				return err
+			}
+		}
+		opt := func(x float64, ok bool) string {
+			if !ok {
+				return ""
+			}
+			return ff(x)
+		}
+		c := o.Candidates[nm.Candidate]
+		rows = append(rows, []string{p.Schemes[c.Scheme].Label, ff(c.AskedR), p.Recons[nm.Recon].Label, strconv.Itoa(nm.Replicas),
+			ff(nm.MeanSNR), opt(nm.MeanG, nm.GAnalytic != nil), opt(nm.MeanGReplica, nm.GReplica != nil)})
+	}
+	return out.WriteCSV(filepath.Join(dir, "noise_maps.csv"), header, rows)
+}

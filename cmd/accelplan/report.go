@@ -477,6 +477,16 @@ func reportCandidates(o *plans.Outcome, a *plans.Analysis, limit, lo, hi float64
 			Meets:  r.Meets, Pick: i == a.Best,
 			Mask: pics[r.Candidate].mask, PSF: pics[r.Candidate].psf, MaskCaption: pics[r.Candidate].caption,
 		}
+		for _, nm := range o.NoiseMaps {
+			if nm.Candidate != r.Candidate || nm.Recon != r.Recon {
+				continue
+			}
+			figs, err := noiseFigures(nm, ny, nx)
+			if err != nil {
+				return nil, err
+			}
+			rc.Extra = append(rc.Extra, figs...)
+		}
 		for _, m := range reportMetrics {
 			sm := r.Metric(m)
 			if !finite(sm.Mean) {
@@ -640,4 +650,18 @@ func writeReport(dir string, o *plans.Outcome, a *plans.Analysis, version, cauti
 		return err
 	}
 	return out.WriteReport(filepath.Join(dir, "report.html"), r)
+}
+
+// noiseFigures are the report pictures of a noise map: the pseudo-replica
+// SNR map and, where defined, the g-factor maps.
+func noiseFigures(nm plans.NoiseMap, ny, nx int) ([]out.ReportFigure, error) {
+	var figs []out.ReportFigure
+	for _, f := range noiseImages(nm) {
+		b, err := grayPNG(f.img, ny, nx, f.lo, f.hi)
+		if err != nil {
+			return nil, err
+		}
+		figs = append(figs, out.ReportFigure{Caption: f.caption, Note: f.note, PNG: b})
+	}
+	return figs, nil
 }
