@@ -320,10 +320,15 @@ type POCSInfo struct {
 //  2. enforces the data: the acquired k-space samples of x are replaced by
 //     the measured ones, the missing ones kept as step 1 filled them.
 //
-// Both sets are convex (a subspace and an affine set), so the iteration
-// converges; for a real object and exact data the missing samples approach
+// Both sets are convex (a subspace and an affine set), and alternating
+// projections between them converge: to a point of their intersection when
+// the data agree with the phase, otherwise (noise, a phase not quite right)
+// towards the data-consistent image nearest the phase-constrained set, ever
+// more slowly. For a real object and exact data the missing samples approach
 // the conjugates of their partners geometrically (the error halves every
-// iteration) and the image approaches the object. The returned image is the
+// iteration) and the image approaches the object. With noise the error to
+// the object is often lowest after a few iterations and creeps up after, so
+// a small MaxIter is a reasonable choice. The returned image is the
 // data-consistent iterate of the last step 2.
 //
 // The iterations allocate nothing. Errors report wrong lengths or invalid

@@ -396,6 +396,39 @@ func TestPartialFourierSmoothPhase(t *testing.T) {
 	}
 }
 
+// TestPartialFourierBandMatchesSampling: the symmetric band that
+// NewPartialFourier finds in a mask from trajectories.PartialFourier is the
+// band that sampling records (PFInfo.Band), for fully sampled and
+// undersampled inputs and both grid parities.
+func TestPartialFourierBandMatchesSampling(t *testing.T) {
+	for _, c := range []struct {
+		ny, step, calib int
+		fraction        float64
+	}{
+		{64, 1, 0, 5.0 / 8}, {64, 1, 0, 1}, {64, 1, 0, 0.5}, {63, 1, 0, 7.0 / 8},
+		{64, 3, 0, 6.0 / 8}, {64, 2, 30, 5.0 / 8}, {65, 4, 9, 0.6},
+	} {
+		s, err := trajectories.CartesianUniform(c.ny, 6, c.step, c.calib)
+		if err != nil {
+			t.Fatal(err)
+		}
+		pf, info, err := trajectories.PartialFourier(s, c.fraction)
+		if err != nil {
+			t.Fatal(err)
+		}
+		p, err := priors.NewPartialFourier(pf.Ny, pf.Nx, pf.Mask, priors.PartialFourierOptions{})
+		if err != nil {
+			t.Fatal(err)
+		}
+		if p.Band() != info.Band || p.DataLen() != pf.Shots*pf.Nx {
+			t.Errorf("%+v: reconstructor band %d with %d samples, sampling band %d with %d lines", c, p.Band(), p.DataLen(), info.Band, pf.Shots)
+		}
+		if want := 1; c.fraction < 1 && p.Side() != want {
+			t.Errorf("%+v: side %d, want %d", c, p.Side(), want)
+		}
+	}
+}
+
 type pfFixture struct {
 	NY, NX, K, Iters       int
 	Mask                   []bool
