@@ -1,6 +1,7 @@
 package priors
 
 import (
+	"fmt"
 	"math"
 	"math/cmplx"
 	"math/rand/v2"
@@ -188,4 +189,41 @@ func pnpComplex(x []float64) []complex128 {
 		out[i] = complex(v, 0)
 	}
 	return out
+}
+
+// The denoisers a plan can name, each applied to the same noisy invented
+// scene (flat regions on a dim background, noise σ = 0.05): the error falls
+// for every one.
+func ExampleNewDenoiser() {
+	const n, sigma = 64, 0.05
+	rng := rand.New(rand.NewPCG(3, 4))
+	truth := make([]complex128, n*n)
+	noisy := make([]complex128, n*n)
+	for i := range n {
+		for j := range n {
+			v := 0.1
+			if i > 12 && i < 40 && j > 8 && j < 44 {
+				v = 0.9
+			}
+			if (i-44)*(i-44)+(j-40)*(j-40) < 144 {
+				v = 0.5
+			}
+			truth[i*n+j] = complex(v, 0)
+			noisy[i*n+j] = complex(v+sigma*rng.NormFloat64(), sigma*rng.NormFloat64())
+		}
+	}
+	out := make([]complex128, n*n)
+	for _, kind := range DenoiserKinds() {
+		d, err := NewDenoiser(kind, n, n)
+		if err != nil {
+			panic(err)
+		}
+		d.Denoise(out, noisy, sigma)
+		fmt.Printf("%-12s error reduced: %v\n", kind, pnpComplexNRMSE(out, truth) < 0.7*pnpComplexNRMSE(noisy, truth))
+	}
+	// Output:
+	// tv           error reduced: true
+	// wavelet      error reduced: true
+	// wavelet-spin error reduced: true
+	// nlm          error reduced: true
 }

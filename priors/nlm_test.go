@@ -2,6 +2,7 @@ package priors
 
 import (
 	"encoding/json"
+	"fmt"
 	"math"
 	"math/cmplx"
 	"math/rand/v2"
@@ -471,4 +472,35 @@ func BenchmarkNLM256(b *testing.B) {
 			done()
 		})
 	}
+}
+
+// Non-local means on an invented complex scene (a bright square and a grey
+// disc with a phase ramp) with noise of σ = 0.05 per channel.
+func ExampleNLM() {
+	const ny, nx, sigma = 48, 64, 0.05
+	rng := rand.New(rand.NewPCG(1, 2))
+	truth := make([]complex128, ny*nx)
+	noisy := make([]complex128, ny*nx)
+	for i := range ny {
+		for j := range nx {
+			v := 0.2
+			if i > 8 && i < 30 && j > 10 && j < 34 {
+				v = 1
+			}
+			if (i-30)*(i-30)+(j-46)*(j-46) < 100 {
+				v = 0.6
+			}
+			truth[i*nx+j] = cmplx.Rect(v, 0.02*float64(j))
+			noisy[i*nx+j] = truth[i*nx+j] + complex(sigma*rng.NormFloat64(), sigma*rng.NormFloat64())
+		}
+	}
+	d, err := NewNLM(ny, nx, DefaultNLMOptions()) // 7×7 patches, 11×11 window, h = 1.2σ
+	if err != nil {
+		panic(err)
+	}
+	out := make([]complex128, len(noisy))
+	d.Denoise(out, noisy, sigma)
+	fmt.Printf("NRMSE noisy %.2f, denoised %.2f\n", pnpComplexNRMSE(noisy, truth), pnpComplexNRMSE(out, truth))
+	// Output:
+	// NRMSE noisy 0.15, denoised 0.05
 }

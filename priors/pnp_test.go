@@ -1,6 +1,7 @@
 package priors
 
 import (
+	"fmt"
 	"math"
 	"math/rand/v2"
 	"strings"
@@ -378,4 +379,49 @@ func BenchmarkPnPFISTAIteration256(b *testing.B) {
 			b.ReportMetric(float64(b.Elapsed().Nanoseconds())/float64(b.N*iters), "ns/iter")
 		})
 	}
+}
+
+// Plug-and-play ADMM with non-local means, with the ρ continuation, on an
+// undersampled Cartesian acquisition (64², R ≈ 4.6) of the modified
+// Shepp-Logan phantom; the denoising strength is set relative to the peak of
+// the zero-filled image.
+func ExamplePnPADMM() {
+	const n = 64
+	ph := simulate.ModifiedSheppLogan()
+	truth := ph.Rasterize(n, n)
+	rng := rand.New(rand.NewPCG(1, 0x5eed))
+	mask := make([]bool, n*n)
+	for i := range n {
+		for j := range n {
+			k := math.Hypot(float64(i-n/2), float64(j-n/2)) / float64(n/2)
+			mask[i*n+j] = k < 0.125 || rng.Float64() < 0.1+0.9*math.Pow(max(1-k, 0), 2)
+		}
+	}
+	op, err := simulate.NewCartesian(n, n, mask)
+	if err != nil {
+		panic(err)
+	}
+	y := make([]complex128, op.DataLen())
+	op.Gather(y, simulate.CartesianSpectrum(ph, n, n)) // exact spectrum, no inverse crime
+	simulate.AddNoise(y, 0.01, rng)
+	zf := ZeroFilled(op, y)
+	fmt.Printf("zero-filled NRMSE %.2f\n", pnpNRMSE(zf, truth))
+
+	nlm, err := NewDenoiser("nlm", n, n)
+	if err != nil {
+		panic(err)
+	}
+	p, err := NewPnPADMM(op, nlm)
+	if err != nil {
+		panic(err)
+	}
+	x := append([]complex128(nil), zf...) // start (and warm start) at Eᴴy
+	rep, err := p.Solve(x, y, 0.1*MaxAbs(zf), PnPADMMOptions{MaxIter: 200, Tol: 1e-4, RhoGrowth: 1.2})
+	if err != nil {
+		panic(err)
+	}
+	fmt.Printf("PnP-ADMM (NLM) NRMSE %.2f, converged %v\n", pnpNRMSE(x, truth), rep.Converged)
+	// Output:
+	// zero-filled NRMSE 0.46
+	// PnP-ADMM (NLM) NRMSE 0.16, converged true
 }

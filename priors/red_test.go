@@ -1,8 +1,10 @@
 package priors
 
 import (
+	"fmt"
 	"math"
 	"math/cmplx"
+	"math/rand/v2"
 	"strings"
 	"testing"
 
@@ -218,4 +220,41 @@ func BenchmarkREDIteration256(b *testing.B) {
 			})
 		}
 	}
+}
+
+// Regularisation by denoising with the TV denoiser (fixed-point update) on an
+// undersampled Cartesian acquisition (64², R ≈ 4.6) of the modified
+// Shepp-Logan phantom. λ weighs the prior; σ, the denoiser's strength, is
+// set relative to the peak of the zero-filled image.
+func ExampleRED() {
+	const n = 64
+	ph := simulate.ModifiedSheppLogan()
+	truth := ph.Rasterize(n, n)
+	rng := rand.New(rand.NewPCG(1, 0x5eed))
+	mask := make([]bool, n*n)
+	for i := range n {
+		for j := range n {
+			k := math.Hypot(float64(i-n/2), float64(j-n/2)) / float64(n/2)
+			mask[i*n+j] = k < 0.125 || rng.Float64() < 0.1+0.9*math.Pow(max(1-k, 0), 2)
+		}
+	}
+	op, _ := simulate.NewCartesian(n, n, mask)
+	y := make([]complex128, op.DataLen())
+	op.Gather(y, simulate.CartesianSpectrum(ph, n, n))
+	simulate.AddNoise(y, 0.01, rng)
+	zf := ZeroFilled(op, y)
+
+	tv, _ := NewDenoiser("tv", n, n)
+	r, err := NewRED(op, tv)
+	if err != nil {
+		panic(err)
+	}
+	x := append([]complex128(nil), zf...)
+	rep, err := r.Solve(x, y, 0.1, 0.02*MaxAbs(zf), REDOptions{Update: REDFixedPoint, MaxIter: 150, Tol: 1e-4})
+	if err != nil {
+		panic(err)
+	}
+	fmt.Printf("NRMSE zero-filled %.2f, RED (TV) %.2f; converged %v\n", pnpNRMSE(zf, truth), pnpNRMSE(x, truth), rep.Converged)
+	// Output:
+	// NRMSE zero-filled 0.46, RED (TV) 0.17; converged true
 }
