@@ -439,6 +439,35 @@ func (v *validator) fail(table string, index int, key, msg, hint string) {
 	v.err = &Error{File: v.file, Line: line, Key: name, Msg: msg, Hint: hint}
 }
 
+// explicitZeros refuses a 0 written in the file for a key whose leaving-out
+// means "use the default": a user who writes iterations = 0 has made a
+// mistake, not asked for the default.
+func (v *validator) explicitZeros(p *Plan) {
+	zero := func(table string, index int, key string, isZero bool, hint string) {
+		if isZero && findKeyIn(v.text, table, index, key) > 0 {
+			v.fail(table, index, key, "must not be 0", hint)
+		}
+	}
+	zero("", -1, "repeats", p.Repeats == 0, "at least 2 scored noise draws; leave it out for 4")
+	zero("scanner", -1, "echo_train", p.Scanner.EchoTrain == 0, "1 for one echo per TR; leave it out for 1")
+	zero("scanner", -1, "averages", p.Scanner.Averages == 0, "at least 1; leave it out for 1")
+	zero("scanner", -1, "coils", p.Scanner.Coils == 0, "1 for a single coil; leave it out for 1")
+	for i, s := range p.Schemes {
+		zero("scheme", i, "density_power", s.DensityPower == 0, "a positive power; leave it out for 3")
+		zero("scheme", i, "readout_oversampling", s.ReadoutOversampling == 0, "at least 1; leave it out for 2")
+		zero("scheme", i, "edge_undersampling", s.EdgeUndersampling == 0, "at least 1; leave it out for 1")
+	}
+	for i, r := range p.Recons {
+		zero("recon", i, "iterations", r.Iterations == 0, "at least 1; leave it out for the default")
+		zero("recon", i, "levels", r.Levels == 0, "at least 1; leave it out for 4")
+		zero("recon", i, "tgv_ratio", r.TGVRatio == 0, "a positive ratio; leave it out for 2")
+		zero("recon", i, "lambda", r.Lambda == 0, "λ = 0 is no regularisation; leave lambda out to choose it by lambda_rule, or give a positive value")
+	}
+	for i, m := range p.NoiseMaps {
+		zero("noise_map", i, "replicas", m.Replicas == 0, "at least 8; leave it out for 32")
+	}
+}
+
 func oneOf(s string, list []string) bool {
 	for _, x := range list {
 		if s == x {
@@ -451,6 +480,7 @@ func oneOf(s string, list []string) bool {
 func finite(x float64) bool { return !math.IsNaN(x) && !math.IsInf(x, 0) }
 
 func (v *validator) plan(p *Plan) {
+	v.explicitZeros(p)
 	if p.Repeats == 0 {
 		p.Repeats = 4
 	}

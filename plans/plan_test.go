@@ -83,6 +83,10 @@ func TestParseRejects(t *testing.T) {
 		{"calibration larger than matrix", "calibration_lines = 8", "calibration_lines = 80", "scheme[1].calibration_lines", 20, "between 0 and"},
 		{"one repeat", "repeats = 3", "repeats = 1", "repeats", 3, "between 2 and"},
 		{"negative lambda", `method = "zero-filled"`, "method = \"fista-wavelet\"\nlambda = -1", "recon[1].lambda", 24, "finite number"},
+		{"zero iterations", `method = "zero-filled"`, "method = \"fista-wavelet\"\niterations = 0", "recon[1].iterations", 24, "must not be 0"},
+		{"negative iterations", `method = "zero-filled"`, "method = \"fista-wavelet\"\niterations = -3", "recon[1].iterations", 24, "between 1 and"},
+		{"huge matrix", "phase_lines = 64", "phase_lines = 1000000000", "object.phase_lines", 7, "between 16 and 1024"},
+		{"unknown method lists choices", `method = "zero-filled"`, `method = "sparse-magic"`, "recon[1].method", 23, "unknown method"},
 	}
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {
