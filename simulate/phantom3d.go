@@ -235,8 +235,8 @@ func ballFT(q float64) float64 {
 // the unit ball's transform (a radial function's 3D transform, Bracewell RN,
 // The Fourier Transform and Its Applications, McGraw-Hill, from memory)
 // stretched by the affine map from the ball to the ellipsoid, as in the 3D
-// analytical MRI phantom of Koay CG, Sarlls JE, Özarslan E, MRM
-// 2007;58:430-436. At k = 0 it is Σ ρ·(4/3)π·abc, the phantom's integral.
+// analytical MRI phantom of Koay CG et al., MRM 2007;58:430-436 (from
+// memory). At k = 0 it is Σ ρ·(4/3)π·abc, the phantom's integral.
 func (e Ellipsoids) Spectrum3D(kx, ky, kz float64) complex128 {
 	var sum complex128
 	for _, el := range e {
@@ -324,6 +324,9 @@ func (e Ellipsoids) slice(ax int, pos float64, col, row int) Ellipses {
 			continue
 		}
 		if sec, ok := el.section(ax, pos, col, row); ok {
+			if out == nil {
+				out = make(Ellipses, 0, len(e))
+			}
 			out = append(out, sec)
 		}
 	}

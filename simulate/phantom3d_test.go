@@ -44,27 +44,12 @@ func randomEllipsoids(n int, rng *rand.Rand) Ellipsoids {
 	return e
 }
 
-// shapeMatrix builds S = R·diag(a², b², c²)·Rᵀ with gonum from the rotation
-// convention stated on Ellipsoid, written as a product of the two textbook
-// axis rotations rather than the closed-form columns used in phantom3d.go:
-// R = Rz(φ)·Ry(−θ), where Rz(φ) turns +x towards +y and Ry(−θ) (a rotation
-// about y by −θ, right-hand rule) tips +x towards +z.
+// shapeMatrix builds S = R·diag(a², b², c²)·Rᵀ with gonum, R from rotation.
 func shapeMatrix(el Ellipsoid) *mat.Dense {
-	p, t := el.PhiDeg*math.Pi/180, -el.ThetaDeg*math.Pi/180
-	rz := mat.NewDense(3, 3, []float64{
-		math.Cos(p), -math.Sin(p), 0,
-		math.Sin(p), math.Cos(p), 0,
-		0, 0, 1,
-	})
-	ry := mat.NewDense(3, 3, []float64{
-		math.Cos(t), 0, math.Sin(t),
-		0, 1, 0,
-		-math.Sin(t), 0, math.Cos(t),
-	})
-	var r, rd, s mat.Dense
-	r.Mul(rz, ry)
+	r := rotation(el)
+	var rd, s mat.Dense
 	d := mat.NewDiagDense(3, []float64{el.A * el.A, el.B * el.B, el.C * el.C})
-	rd.Mul(&r, d)
+	rd.Mul(r, d)
 	s.Mul(&rd, r.T())
 	return &s
 }
@@ -77,6 +62,61 @@ func ellipseForm(el Ellipse) (qxx, qxy, qyy float64) {
 	s, c := math.Sincos(el.ThetaDeg * math.Pi / 180)
 	ia, ib := 1/(el.A*el.A), 1/(el.B*el.B)
 	return c*c*ia + s*s*ib, c * s * (ia - ib), s*s*ia + c*c*ib
+}
+
+// rotation builds, with gonum, the rotation stated on Ellipsoid as a product
+// of the two textbook axis rotations rather than the closed-form columns used
+// in phantom3d.go: R = Rz(φ)·Ry(−θ), where Rz(φ) turns +x towards +y and
+// Ry(−θ) (a rotation about y by −θ, right-hand rule) tips +x towards +z.
+func rotation(el Ellipsoid) *mat.Dense {
+	p, t := el.PhiDeg*math.Pi/180, -el.ThetaDeg*math.Pi/180
+	rz := mat.NewDense(3, 3, []float64{
+		math.Cos(p), -math.Sin(p), 0,
+		math.Sin(p), math.Cos(p), 0,
+		0, 0, 1,
+	})
+	ry := mat.NewDense(3, 3, []float64{
+		math.Cos(t), 0, math.Sin(t),
+		0, 1, 0,
+		-math.Sin(t), 0, math.Cos(t),
+	})
+	var r mat.Dense
+	r.Mul(rz, ry)
+	return &r
+}
+
+func TestRotationConvention(t *testing.T) {
+	// The documented orientation, point by point: the k-th semi-axis runs
+	// along column k of R = Rz(φ)·Ry(−θ) (textbook axis rotations, gonum), so
+	// the points c ± 0.999·aₖ·R[:,k] are inside and c ± 1.001·aₖ·R[:,k]
+	// outside. With θ ≠ 0 this fixes the sense of the tilt, which no diagonal
+	// entry of S can tell.
+	cases := []struct{ phi, theta float64 }{
+		{0, 0}, {30, 0}, {0, 30}, {0, -50}, {-70, 20}, {135, 80}, {200, -10},
+	}
+	for _, c := range cases {
+		el := Ellipsoid{Rho: 1, X0: 0.05, Y0: -0.02, Z0: 0.1, A: 0.3, B: 0.15, C: 0.07, PhiDeg: c.phi, ThetaDeg: c.theta}
+		e := Ellipsoids{el}
+		r := rotation(el)
+		semi := [3]float64{el.A, el.B, el.C}
+		for k := range 3 {
+			for _, f := range []float64{0.999, -0.999, 1.001, -1.001} {
+				x := el.X0 + f*semi[k]*r.At(0, k)
+				y := el.Y0 + f*semi[k]*r.At(1, k)
+				z := el.Z0 + f*semi[k]*r.At(2, k)
+				want := 0.0
+				if math.Abs(f) < 1 {
+					want = 1
+				}
+				if got := e.Value(x, y, z); got != want {
+					t.Errorf("φ=%g θ=%g axis %d at %g·semi-axis: Value %g, want %g", c.phi, c.theta, k, f, got, want)
+				}
+				if got := e.SliceX(x).Value(y, z); got != want {
+					t.Errorf("φ=%g θ=%g axis %d at %g·semi-axis: SliceX value %g, want %g", c.phi, c.theta, k, f, got, want)
+				}
+			}
+		}
+	}
 }
 
 func TestModifiedSheppLogan3DMapping(t *testing.T) {
@@ -196,7 +236,8 @@ func TestSliceAgreesWithValue(t *testing.T) {
 	// eigen-decomposition and are tested by Ellipses.Value (phantom.go).
 	// 10⁴ random points per phantom and plane orientation, half uniform in
 	// the FOV, half near a randomly chosen ellipsoid so that the small
-	// features are hit; points within 1e-9 of a surface are skipped.
+	// features are hit; points within 1e-9 of a surface are skipped, and at
+	// least a tenth of the points must fall inside the phantom.
 	phantoms := map[string]Ellipsoids{
 		"SheppLogan3D": ModifiedSheppLogan3D(),
 		"random":       randomEllipsoids(12, rand.New(rand.NewPCG(3, 30))),
@@ -285,6 +326,16 @@ func TestSectionArea(t *testing.T) {
 				want := math.Pi * el.A * el.B * el.C / h * (1 - d*d/nsn)
 				if got := area(c[ax] + d); math.Abs(got-want) > 1e-12*math.Max(want, 1e-3) {
 					t.Errorf("ellipsoid %d axis %d δ=%.3f·h: area %.15g, formula %.15g", i, ax, frac, got, want)
+				}
+				// The section's centre lies on the diameter conjugate to the
+				// plane, c + δ·S·n/(nᵀSn) (standard result, from memory;
+				// confirmed by the membership tests above).
+				sec := slice(Ellipsoids{el}, c[ax]+d)
+				in := [3][2]int{{1, 2}, {0, 2}, {0, 1}}[ax]
+				wx := c[in[0]] + d*s.At(in[0], ax)/nsn
+				wy := c[in[1]] + d*s.At(in[1], ax)/nsn
+				if len(sec) != 1 || math.Abs(sec[0].X0-wx) > 1e-14 || math.Abs(sec[0].Y0-wy) > 1e-14 {
+					t.Errorf("ellipsoid %d axis %d δ=%.3f·h: section %v, centre want (%g, %g)", i, ax, frac, sec, wx, wy)
 				}
 			}
 			for _, frac := range []float64{1.0001, -1.0001, 3} {
