@@ -19,6 +19,7 @@ type encoding struct {
 	clean   []complex128 // shared read-only by every worker
 	weights []float64    // nil for Cartesian masks
 	step    float64      // 1/L with L ≥ ‖EᴴE‖
+	mask    []bool       // the Cartesian mask, nil off the grid
 }
 
 // cleanData holds the noiseless data of every candidate, each computed once
@@ -55,7 +56,7 @@ func (w *workerState) encodingFor(ci int) (*encoding, error) {
 		if err != nil {
 			return nil, err
 		}
-		e.op, e.step = op, 1 // a masked orthonormal FFT has ‖E‖ = 1
+		e.op, e.step, e.mask = op, 1, s.Mask // a masked orthonormal FFT has ‖E‖ = 1
 		env.clean.once[ci].Do(func() {
 			d := make([]complex128, op.DataLen())
 			op.Gather(d, env.spectrum)

@@ -123,6 +123,16 @@ type Scanner struct {
 	EchoTrain    int     `toml:"echo_train"`
 	Averages     int     `toml:"averages"`
 	ReferenceSNR float64 `toml:"reference_snr"`
+	// Time model extras (see Budget): slices interleaved within the TR,
+	// concatenations (packages) played one after another, phase
+	// oversampling as a fraction of the lines, dummy TRs before each
+	// concatenation, and a separate calibration scan.
+	Slices            int     `toml:"slices"`
+	SliceTimeMs       float64 `toml:"slice_time_ms"`
+	Concatenations    int     `toml:"concatenations"`
+	PhaseOversampling float64 `toml:"phase_oversampling"`
+	DummyScans        int     `toml:"dummy_scans"`
+	CalibrationScanS  float64 `toml:"calibration_scan_s"`
 	// Receive coils: 1 is a single uniform coil; more are a ring array.
 	Coils int `toml:"coils"`
 	// CoilCorrelation is the noise correlation between neighbouring coils
@@ -150,7 +160,10 @@ type Scheme struct {
 	// Spiral interleaves.
 	Interleaves []int `toml:"interleaves"`
 	// ODT illumination counts.
-	Illuminations     []int   `toml:"illuminations"`
+	Illuminations []int `toml:"illuminations"`
+	// PartialFourier is the acquired fraction of k-space along phase
+	// encode (2D Cartesian), e.g. 0.625; 0 or 1 means full.
+	PartialFourier    float64 `toml:"partial_fourier"`
 	EdgeUndersampling float64 `toml:"edge_undersampling"`
 	DenseFraction     float64 `toml:"dense_fraction"`
 }
@@ -203,6 +216,8 @@ const (
 	MethodTGV          = "tgv-pdhg"
 	MethodADMMWavelet  = "admm-wavelet"
 	MethodCGSENSE      = "cg-sense"
+	MethodHomodyne     = "homodyne"
+	MethodPOCS         = "pocs"
 
 	RuleCalibration = "calibration"
 	RuleDiscrepancy = "discrepancy"
@@ -217,11 +232,39 @@ const (
 var (
 	patterns    = []string{PatternUniform, PatternRandom, PatternRadial, PatternSpiral, PatternFan, PatternFanGolden}
 	spokeOrders = []string{"golden", "tiny-golden", "uniform", "rational-golden"}
-	methods     = []string{MethodZeroFilled, MethodFISTAWavelet, MethodTikhonov, MethodTV, MethodTGV, MethodADMMWavelet, MethodCGSENSE, MethodFISTABox}
+	methods     = []string{MethodZeroFilled, MethodFISTAWavelet, MethodTikhonov, MethodTV, MethodTGV, MethodADMMWavelet, MethodCGSENSE, MethodHomodyne, MethodPOCS, MethodFISTABox}
 	metrics     = []string{MetricSSIM, MetricPSNR, MetricNRMSE}
 	phantoms    = []string{"modified-shepp-logan"}
 	wavelets    = []string{"haar", "db2", "db3", "db4", "db5", "db6", "db7", "db8"}
 )
+
+// partialFourierRecon checks a homodyne or POCS reconstruction: single-coil
+// Cartesian data, with iterations for POCS only.
+func (v *validator) partialFourierRecon(p *Plan, i int) {
+	r := &p.Recons[i]
+	if p.Scanner.Coils > 1 {
+		v.fail("recon", i, "method", r.Method+" combines one coil's data", "use it with scanner.coils = 1")
+	}
+	for j, s := range p.Schemes {
+		if s.NonCartesian() {
+			v.fail("scheme", j, "pattern", fmt.Sprintf("method %s needs Cartesian lines, and scheme %q is %s", r.Method, s.Label, s.Pattern), "give partial Fourier reconstructions a plan of Cartesian schemes")
+		}
+	}
+	if r.Wavelet != "" || r.Levels != 0 || r.Lambda != 0 || r.LambdaLook != nil || r.LambdaRule != "" {
+		v.fail("recon", i, "lambda", r.Method+" has no regulariser", "keep only iterations (pocs)")
+	}
+	if r.Method == MethodHomodyne && r.Iterations != 0 {
+		v.fail("recon", i, "iterations", "homodyne is not iterative", "remove it, or use pocs")
+	}
+	if r.Method == MethodPOCS {
+		if r.Iterations == 0 {
+			r.Iterations = 5
+		}
+		if r.Iterations < 1 || r.Iterations > 1000 {
+			v.fail("recon", i, "iterations", fmt.Sprintf("must be between 1 and 1000, got %d", r.Iterations), "with noise a few iterations are best")
+		}
+	}
+}
 
 // usesSENSE reports whether a plan reconstructs with CG-SENSE.
 func usesSENSE(p *Plan) bool {
@@ -452,6 +495,8 @@ func (v *validator) explicitZeros(p *Plan) {
 	zero("scanner", -1, "echo_train", p.Scanner.EchoTrain == 0, "1 for one echo per TR; leave it out for 1")
 	zero("scanner", -1, "averages", p.Scanner.Averages == 0, "at least 1; leave it out for 1")
 	zero("scanner", -1, "coils", p.Scanner.Coils == 0, "1 for a single coil; leave it out for 1")
+	zero("scanner", -1, "slices", p.Scanner.Slices == 0, "at least 1; leave it out for 1")
+	zero("scanner", -1, "concatenations", p.Scanner.Concatenations == 0, "at least 1; leave it out for 1")
 	for i, s := range p.Schemes {
 		zero("scheme", i, "density_power", s.DensityPower == 0, "a positive power; leave it out for 3")
 		zero("scheme", i, "readout_oversampling", s.ReadoutOversampling == 0, "at least 1; leave it out for 2")
@@ -536,6 +581,30 @@ func (v *validator) plan(p *Plan) {
 	if s.Averages < 1 || s.Averages > 64 {
 		v.fail("scanner", -1, "averages", fmt.Sprintf("must be between 1 and 64, got %d", s.Averages), "")
 	}
+	if s.Slices == 0 {
+		s.Slices = 1
+	}
+	if s.Concatenations == 0 {
+		s.Concatenations = 1
+	}
+	switch {
+	case s.Slices < 1 || s.Slices > 1000:
+		v.fail("scanner", -1, "slices", fmt.Sprintf("must be between 1 and 1000, got %d", s.Slices), "")
+	case s.Concatenations < 1 || s.Concatenations > s.Slices:
+		v.fail("scanner", -1, "concatenations", fmt.Sprintf("must be between 1 and the %d slices, got %d", s.Slices, s.Concatenations), "")
+	case !(s.SliceTimeMs >= 0) || !finite(s.SliceTimeMs):
+		v.fail("scanner", -1, "slice_time_ms", fmt.Sprintf("must be a time ≥ 0 ms, got %v", s.SliceTimeMs), "")
+	case s.SliceTimeMs > 0 && float64((s.Slices+s.Concatenations-1)/s.Concatenations)*s.SliceTimeMs > s.TRms:
+		per := (s.Slices + s.Concatenations - 1) / s.Concatenations
+		v.fail("scanner", -1, "concatenations", fmt.Sprintf("%d slices per TR × %g ms do not fit in tr_ms = %g", per, s.SliceTimeMs, s.TRms),
+			fmt.Sprintf("raise concatenations to at least %d, raise tr_ms, or lower slices", int(math.Ceil(float64(s.Slices)*s.SliceTimeMs/s.TRms))))
+	case !(s.PhaseOversampling >= 0) || s.PhaseOversampling > 1:
+		v.fail("scanner", -1, "phase_oversampling", fmt.Sprintf("must lie in [0, 1] (a fraction of the lines), got %v", s.PhaseOversampling), "0.2 acquires 20% more lines against wrap-around")
+	case s.DummyScans < 0 || s.DummyScans > 10000:
+		v.fail("scanner", -1, "dummy_scans", fmt.Sprintf("must be between 0 and 10000, got %d", s.DummyScans), "")
+	case !(s.CalibrationScanS >= 0) || !finite(s.CalibrationScanS) || s.CalibrationScanS > 3600:
+		v.fail("scanner", -1, "calibration_scan_s", fmt.Sprintf("must be between 0 and 3600 s, got %v", s.CalibrationScanS), "")
+	}
 	if s.Coils == 0 {
 		s.Coils = 1
 	}
@@ -615,6 +684,9 @@ func (v *validator) scheme(p *Plan, i int) {
 	}
 	if s.Illuminations != nil {
 		v.fail("scheme", i, "illuminations", "applies to modality odt only", "remove it")
+	}
+	if s.PartialFourier != 0 && (s.NonCartesian() || !(s.PartialFourier >= 0.5) || s.PartialFourier > 1) {
+		v.fail("scheme", i, "partial_fourier", fmt.Sprintf("must lie in [0.5, 1] for a Cartesian scheme, got %v", s.PartialFourier), "5/8 = 0.625 and 6/8 = 0.75 are common")
 	}
 	if s.NonCartesian() {
 		v.nonCartesian(p, i)
@@ -806,6 +878,10 @@ func (v *validator) recon(p *Plan, i int) {
 	}
 	if r.Method == MethodFISTABox {
 		v.boxRecon(p, i)
+		return
+	}
+	if r.Method == MethodHomodyne || r.Method == MethodPOCS {
+		v.partialFourierRecon(p, i)
 		return
 	}
 	if r.Method == MethodCGSENSE && p.Scanner.Coils < 2 {

@@ -231,3 +231,51 @@ func TestNoiseMaps(t *testing.T) {
 		t.Errorf("a noise map at an R the scheme lacks was accepted: %v", err)
 	}
 }
+
+// The time budget follows the handbook model (Bernstein et al. 2004): TR ×
+// ⌈lines·(1 + phase oversampling)/echo train⌉ × averages × concatenations,
+// plus dummy TRs per concatenation and a calibration scan. Worked example:
+// 128 lines × 1.2 → 154 lines, /8 → 20 trains, × 3 s × 2 concatenations =
+// 120 s; dummies 2 × 3 s × 2 = 12 s; calibration 6 s; total 138 s.
+func TestTimeBudgetWorkedExample(t *testing.T) {
+	text := strings.NewReplacer("phase_lines = 64", "phase_lines = 128", "readout_points = 64", "readout_points = 128",
+		"tr_ms = 500\necho_train = 1", "tr_ms = 3000\necho_train = 8\nslices = 24\nslice_time_ms = 150\nconcatenations = 2\nphase_oversampling = 0.2\ndummy_scans = 2\ncalibration_scan_s = 6",
+		"accelerations = [1, 2]", "accelerations = [1]").Replace(minimal)
+	p, err := Parse("m.toml", []byte(text))
+	if err != nil {
+		t.Fatal(err)
+	}
+	b := Budget(p, p.Schemes[0], 128)
+	if b.Imaging != 120 || b.Dummy != 12 || b.Calibration != 6 || b.Total != 138 || b.Shots != 154 {
+		t.Errorf("budget %+v, want imaging 120, dummy 12, calibration 6, total 138, 154 lines", b)
+	}
+	// 24 slices of 150 ms need 3.6 s: one concatenation does not fit in 3 s.
+	bad := strings.Replace(text, "concatenations = 2", "concatenations = 1", 1)
+	if _, err := Parse("m.toml", []byte(bad)); err == nil || !strings.Contains(err.Error(), "raise concatenations to at least 2") {
+		t.Errorf("slices that do not fit in TR were accepted: %v", err)
+	}
+}
+
+// Partial Fourier at 5/8 acquires round(5/8·ny) lines (common practice), and
+// POCS reconstructs it better than zero-filling the missing lines.
+func TestPartialFourierInSweep(t *testing.T) {
+	text := strings.NewReplacer("accelerations = [1, 2]", "accelerations = [1]\npartial_fourier = 0.625",
+		"calibration_lines = 8", "calibration_lines = 0",
+		"reference_snr = 30", "reference_snr = 80",
+		"[[recon]]\nmethod = \"zero-filled\"", "[[recon]]\nmethod = \"zero-filled\"\n[[recon]]\nmethod = \"pocs\"").Replace(minimal)
+	p, err := Parse("m.toml", []byte(text))
+	if err != nil {
+		t.Fatal(err)
+	}
+	o, err := Run(context.Background(), p, Options{Workers: 2})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if got := o.Candidates[0].Sampling.Shots; got != 40 {
+		t.Errorf("5/8 of 64 lines: %d acquired, want 40", got)
+	}
+	a := Analyse(o)
+	if zf, pocs := a.Rows[0].NRMSE.Mean, a.Rows[1].NRMSE.Mean; !(pocs < zf) {
+		t.Errorf("POCS NRMSE %.4f not below zero-filled %.4f", pocs, zf)
+	}
+}

@@ -22,6 +22,7 @@ type solver struct {
 	tgv  map[*encoding]*priors.TGVSolver
 	admm map[*encoding]*priors.ADMM
 	cgs  map[*encoding]*priors.CGSENSE
+	pf   map[*encoding]*priors.PartialFourier
 }
 
 func (w *workerState) solverFor(ri int) (*solver, error) {
@@ -33,9 +34,9 @@ func (w *workerState) solverFor(ri int) (*solver, error) {
 	s := &solver{rc: rc, zf: make([]complex128, n), x: make([]complex128, n),
 		tik: map[*encoding]*priors.TikhonovSolver{}, tv: map[*encoding]*priors.TVSolver{},
 		tgv: map[*encoding]*priors.TGVSolver{}, admm: map[*encoding]*priors.ADMM{},
-		cgs: map[*encoding]*priors.CGSENSE{}}
+		cgs: map[*encoding]*priors.CGSENSE{}, pf: map[*encoding]*priors.PartialFourier{}}
 	switch rc.Method {
-	case MethodZeroFilled, MethodTikhonov, MethodTV, MethodTGV, MethodCGSENSE:
+	case MethodZeroFilled, MethodTikhonov, MethodTV, MethodTGV, MethodCGSENSE, MethodHomodyne, MethodPOCS:
 	case MethodFISTAWavelet, MethodADMMWavelet:
 		p, err := priors.NewWaveletL1(w.env.ny, w.env.nx, rc.Levels, rc.Wavelet)
 		if err != nil {
@@ -159,6 +160,29 @@ func (w *workerState) reconstruct(ri int, enc *encoding, y []complex128, lambda 
 			return nil, 0, fmt.Errorf("recon %q: %w", s.rc.Label, err)
 		}
 		return s.x, rep.Iterations, nil
+	case MethodHomodyne, MethodPOCS:
+		pf, ok := s.pf[enc]
+		if !ok {
+			if enc.mask == nil {
+				return nil, 0, fmt.Errorf("recon %q: partial Fourier needs a Cartesian mask", s.rc.Label)
+			}
+			var err error
+			if pf, err = priors.NewPartialFourier(w.env.ny, w.env.nx, enc.mask, priors.PartialFourierOptions{}); err != nil {
+				return nil, 0, fmt.Errorf("recon %q: %w", s.rc.Label, err)
+			}
+			s.pf[enc] = pf
+		}
+		if s.rc.Method == MethodHomodyne {
+			if err := pf.Homodyne(s.x, y); err != nil {
+				return nil, 0, fmt.Errorf("recon %q: %w", s.rc.Label, err)
+			}
+			return s.x, 0, nil
+		}
+		info, err := pf.POCS(s.x, y, priors.POCSOptions{MaxIter: s.rc.Iterations})
+		if err != nil {
+			return nil, 0, fmt.Errorf("recon %q: %w", s.rc.Label, err)
+		}
+		return s.x, info.Iterations, nil
 	case MethodADMMWavelet:
 		as, ok := s.admm[enc]
 		if !ok {

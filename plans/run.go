@@ -28,6 +28,10 @@ type Candidate struct {
 	ScanTime float64 // seconds
 	MaskSeed uint64
 	key      string
+	// PF describes the partial-Fourier cut of the sampling, if any.
+	PF trajectories.PFInfo
+	// Budget breaks ScanTime down.
+	Budget TimeBudget
 	// PSF is the point-spread function on the image grid, peak 1 at the
 	// centre pixel: the inverse FFT of a Cartesian mask, or the
 	// density-compensated NUFFT adjoint EᴴW1 of a non-Cartesian trajectory.
@@ -178,10 +182,17 @@ func Candidates(p *Plan) ([]Candidate, error) {
 				return nil, &Error{File: p.Source, Line: findKeyIn(string(p.Text), "scheme", si, key),
 					Key: fmt.Sprintf("scheme[%d].%s", si+1, key), Msg: fmt.Sprintf("%s: %v", what, err)}
 			}
+			if f := s.PartialFourier; f != 0 && f < 1 && err == nil {
+				c.Sampling, c.PF, err = trajectories.PartialFourier(c.Sampling, f)
+			}
+			if err != nil {
+				return nil, fmt.Errorf("scheme %q, R = %g: partial Fourier: %w", s.Label, r, err)
+			}
 			if err := c.psf(ny, nx); err != nil {
 				return nil, fmt.Errorf("scheme %q, R = %g: PSF: %w", s.Label, r, err)
 			}
-			c.ScanTime = ScanTime(p, s, c.Sampling.Shots)
+			c.Budget = Budget(p, s, c.Sampling.Shots)
+			c.ScanTime = c.Budget.Total
 			out = append(out, c)
 		}
 	}
@@ -389,7 +400,11 @@ func Run(ctx context.Context, p *Plan, opt Options) (*Outcome, error) {
 }
 
 func needsTuning(r Recon) bool {
-	return r.Method != MethodZeroFilled && r.Method != MethodFISTABox && r.Lambda == 0 && r.LambdaRule == RuleCalibration
+	switch r.Method {
+	case MethodZeroFilled, MethodFISTABox, MethodHomodyne, MethodPOCS:
+		return false
+	}
+	return r.Lambda == 0 && r.LambdaRule == RuleCalibration
 }
 
 // pool runs jobs on workers goroutines, each with its own scratch. Results
@@ -608,6 +623,8 @@ func (w *workerState) do(j job) error {
 		lambda, rule = 0, "none"
 	case MethodFISTABox:
 		lambda, rule = 0, "none (a hard box constraint)"
+	case MethodHomodyne, MethodPOCS:
+		lambda, rule = 0, "none (phase-constrained partial Fourier)"
 	}
 	t0 := time.Now()
 	switch rc.LambdaRule {

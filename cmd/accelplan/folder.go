@@ -68,7 +68,7 @@ func writeFolder(dir string, o *plans.Outcome, a *plans.Analysis, version, cauti
 	for _, m := range []string{"ssim", "psnr_db", "nrmse"} {
 		header = append(header, m+"_mean", m+"_sd", m+"_lower95", m+"_upper95")
 	}
-	header = append(header, "lambda_rel", "lambda_rule", "meets_bar", "recommended")
+	header = append(header, "imaging_s", "dummy_s", "calibration_s", "time_formula", "lambda_rel", "lambda_rule", "meets_bar", "recommended")
 	rows = rows[:0]
 	for i, r := range a.Rows {
 		row := []string{r.Scheme, r.Method, ff(r.AskedR), ff(r.R), strconv.Itoa(r.Shots), ff(o.Candidates[r.Candidate].SideLobe), ff(r.ScanTime), out.FormatMinSec(r.ScanTime), strconv.Itoa(r.SSIM.N)}
@@ -85,7 +85,8 @@ func writeFolder(dir string, o *plans.Outcome, a *plans.Analysis, version, cauti
 				}
 			}
 		}
-		row = append(row, ff(r.Lambda), r.LambdaRule, strconv.FormatBool(r.Meets), rec)
+		b := o.Candidates[r.Candidate].Budget
+		row = append(row, ff(b.Imaging), ff(b.Dummy), ff(b.Calibration), b.Formula, ff(r.Lambda), r.LambdaRule, strconv.FormatBool(r.Meets), rec)
 		rows = append(rows, row)
 	}
 	if err := out.WriteCSV(filepath.Join(dir, "summary.csv"), header, rows); err != nil {

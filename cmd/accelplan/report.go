@@ -494,8 +494,8 @@ func reportCandidates(o *plans.Outcome, a *plans.Analysis, limit, lo, hi float64
 			}
 			rc.Values = append(rc.Values, out.ReportValue{Metric: metricTitle(m), Mean: sm.Mean, Std: sm.Std, Bound: r.Bound(m), N: sm.N})
 		}
-		note := fmt.Sprintf("Reconstruction: %s. Sampling: %s. PSF shown as 20·log10(|PSF|/peak) on a −40 … 0 dB grey scale; side-lobe-to-peak ratio %s (Lustig, Donoho, Pauly, MRM 2007).",
-			methodName(p.Recons[r.Recon], gridded(o, c.Scheme)), patternName(s), fmtNum(c.SideLobe))
+		note := fmt.Sprintf("Reconstruction: %s. Sampling: %s. PSF shown as 20·log10(|PSF|/peak) on a −40 … 0 dB grey scale; side-lobe-to-peak ratio %s (Lustig, Donoho, Pauly, MRM 2007). %s",
+			methodName(p.Recons[r.Recon], gridded(o, c.Scheme)), patternName(s), fmtNum(c.SideLobe), budgetText(c.Budget))
 		if img := o.Images[r.Candidate][r.Recon]; len(img) == ny*nx {
 			var err error
 			if rc.Recon, err = grayPNG(img, ny, nx, lo, hi); err != nil {
@@ -664,4 +664,16 @@ func noiseFigures(nm plans.NoiseMap, ny, nx int) ([]out.ReportFigure, error) {
 		figs = append(figs, out.ReportFigure{Caption: f.caption, Note: f.note, PNG: b})
 	}
 	return figs, nil
+}
+
+// budgetText spells out a protocol's time budget.
+func budgetText(b plans.TimeBudget) string {
+	t := fmt.Sprintf("Time budget: %s = %.1f s", b.Formula, b.Imaging)
+	if b.Dummy > 0 {
+		t += fmt.Sprintf("; dummy scans %.1f s", b.Dummy)
+	}
+	if b.Calibration > 0 {
+		t += fmt.Sprintf("; calibration scan %.1f s", b.Calibration)
+	}
+	return t + fmt.Sprintf("; total %.1f s.", b.Total)
 }
