@@ -43,7 +43,11 @@ func (w *workerState) encodingFor(ci int) (*encoding, error) {
 	env := w.env
 	s := env.out.Candidates[ci].Sampling
 	e := &encoding{}
-	if env.plan.Modality == ModalityODT {
+	if env.plan.Is3D() {
+		if err := w.encoding3D(ci, e); err != nil {
+			return nil, err
+		}
+	} else if env.plan.Modality == ModalityODT {
 		if err := w.odtEncoding(ci, e); err != nil {
 			return nil, err
 		}

@@ -36,7 +36,7 @@ func EstimatePlan(ctx context.Context, p *Plan, workers int) (*Estimate, error) 
 	if workers < 1 {
 		workers = 1
 	}
-	ny, nx := p.Object.PhaseLines, p.Object.ReadoutPoints
+	ny, nx := p.ImageSize()
 	o := &Outcome{Plan: p, Candidates: cands}
 	env := &runEnv{plan: p, out: o, clean: newCleanData(len(cands)), ny: ny, nx: nx}
 	if err := env.setScene(); err != nil {
@@ -137,7 +137,8 @@ func dataLen(c Candidate) int {
 // holds per candidate it has met (operators with their grids and kernel
 // tables) and per method (solver buffers).
 func estimateBytes(p *Plan, cands []Candidate, workers int) int64 {
-	ny, nx := int64(p.Object.PhaseLines), int64(p.Object.ReadoutPoints)
+	r, c := p.ImageSize()
+	ny, nx := int64(r), int64(c)
 	img := ny * nx
 	nr := int64(len(p.Recons))
 	var shared, perWorker int64

@@ -80,7 +80,8 @@ func NoiseMaps(ctx context.Context, o *Outcome) ([]NoiseMap, error) {
 	if len(p.NoiseMaps) == 0 {
 		return nil, nil
 	}
-	env := &runEnv{plan: p, out: o, clean: newCleanData(len(o.Candidates)), ny: p.Object.PhaseLines, nx: p.Object.ReadoutPoints}
+	ny, nx := p.ImageSize()
+	env := &runEnv{plan: p, out: o, clean: newCleanData(len(o.Candidates)), ny: ny, nx: nx}
 	if err := env.setScene(); err != nil {
 		return nil, err
 	}

@@ -100,6 +100,10 @@ type Object struct {
 	PhaseLines    int     `toml:"phase_lines"`
 	ReadoutPoints int     `toml:"readout_points"`
 	FOVmm         float64 `toml:"fov_mm"`
+	// 3D Cartesian: the kz phase-encode count, and the readout positions
+	// (FOV units) of the planes that are reconstructed.
+	Partitions       int       `toml:"partitions"`
+	ReadoutPositions []float64 `toml:"readout_positions"`
 	// ODT: an N×N grid over a square FOV in micrometres.
 	Grid  int     `toml:"grid"`
 	FOVum float64 `toml:"fov_um"`
@@ -161,6 +165,12 @@ type Scheme struct {
 	Interleaves []int `toml:"interleaves"`
 	// ODT illumination counts.
 	Illuminations []int `toml:"illuminations"`
+	// 3D Cartesian: the kz extent of the calibration box, dropping the
+	// k-space corners, the Poisson-disc radius growth and the lattice shift.
+	CalibrationPartitions int     `toml:"calibration_partitions"`
+	CornerCut             bool    `toml:"corner_cut"`
+	DiscGrowth            float64 `toml:"disc_growth"`
+	LatticeShift          int     `toml:"lattice_shift"`
 	// PartialFourier is the acquired fraction of k-space along phase
 	// encode (2D Cartesian), e.g. 0.625; 0 or 1 means full.
 	PartialFourier    float64 `toml:"partial_fourier"`
@@ -230,11 +240,12 @@ const (
 )
 
 var (
-	patterns    = []string{PatternUniform, PatternRandom, PatternRadial, PatternSpiral, PatternFan, PatternFanGolden}
+	patterns = []string{PatternUniform, PatternRandom, PatternRadial, PatternSpiral, PatternFan, PatternFanGolden,
+		Pattern3DUniform, Pattern3DShifted, Pattern3DRandom, Pattern3DPoissonDisc}
 	spokeOrders = []string{"golden", "tiny-golden", "uniform", "rational-golden"}
 	methods     = []string{MethodZeroFilled, MethodFISTAWavelet, MethodTikhonov, MethodTV, MethodTGV, MethodADMMWavelet, MethodCGSENSE, MethodHomodyne, MethodPOCS, MethodFISTABox}
 	metrics     = []string{MetricSSIM, MetricPSNR, MetricNRMSE}
-	phantoms    = []string{"modified-shepp-logan"}
+	phantoms    = []string{"modified-shepp-logan", "modified-shepp-logan-3d"}
 	wavelets    = []string{"haar", "db2", "db3", "db4", "db5", "db6", "db7", "db8"}
 )
 
@@ -565,6 +576,14 @@ func (v *validator) plan(p *Plan) {
 	if !(o.FOVmm > 0) || !finite(o.FOVmm) || o.FOVmm > 1000 {
 		v.fail("object", -1, "fov_mm", fmt.Sprintf("must be a positive number up to 1000 mm, got %v", o.FOVmm), "")
 	}
+	if o.Partitions != 0 {
+		v.object3D(p)
+	} else if o.ReadoutPositions != nil {
+		v.fail("object", -1, "readout_positions", "applies to 3D plans only", "set object.partitions for a 3D scan, or remove it")
+	}
+	if o.Phantom == "modified-shepp-logan-3d" && o.Partitions == 0 {
+		v.fail("object", -1, "phantom", "the 3D phantom needs a 3D plan", "set object.partitions, or use modified-shepp-logan")
+	}
 	s := &p.Scanner
 	if !(s.TRms > 0) || !finite(s.TRms) || s.TRms > 60000 {
 		v.fail("scanner", -1, "tr_ms", fmt.Sprintf("must be between 0 and 60000 ms, got %v", s.TRms), "the repetition time in milliseconds")
@@ -610,6 +629,9 @@ func (v *validator) plan(p *Plan) {
 	}
 	if s.Coils < 1 || s.Coils > 64 {
 		v.fail("scanner", -1, "coils", fmt.Sprintf("must be between 1 and 64, got %d", s.Coils), "1 for a single uniform coil, e.g. 8 for a ring array")
+	}
+	if s.Coils > 1 && p.Object.Partitions > 0 {
+		v.fail("scanner", -1, "coils", "receive arrays are not simulated for 3D plans yet", "use coils = 1 with partitions, or a 2D plan")
 	}
 	if !(s.CoilCorrelation >= 0) || s.CoilCorrelation >= 1 || (s.CoilCorrelation > 0 && s.Coils < 2) {
 		v.fail("scanner", -1, "coil_noise_correlation", fmt.Sprintf("must lie in [0, 1) with 2 or more coils, got %v", s.CoilCorrelation), "0.1 to 0.3 is typical of neighbouring coils")
@@ -669,6 +691,13 @@ func (v *validator) scheme(p *Plan, i int) {
 	if !oneOf(s.Pattern, patterns) {
 		v.fail("scheme", i, "pattern", fmt.Sprintf("unknown sampling pattern %q", s.Pattern), "choose one of: "+strings.Join(patterns, ", "))
 		return
+	}
+	if oneOf(s.Pattern, patterns3D) {
+		v.scheme3D(p, i)
+		return
+	}
+	if s.CalibrationPartitions != 0 || s.CornerCut || s.DiscGrowth != 0 || s.LatticeShift != 0 {
+		v.fail("scheme", i, "calibration_partitions", "calibration_partitions, corner_cut, disc_growth and lattice_shift apply to 3D patterns only", "remove them")
 	}
 	if s.Label == "" {
 		s.Label = fmt.Sprintf("%s %d", s.Pattern, i+1)
@@ -941,7 +970,8 @@ func (v *validator) recon(p *Plan, i int) {
 	if r.Levels < 1 || r.Levels > 8 {
 		v.fail("recon", i, "levels", fmt.Sprintf("must be between 1 and 8, got %d", r.Levels), "")
 	}
-	for _, n := range []int{p.Object.PhaseLines, p.Object.ReadoutPoints} {
+	rows, cols := p.PlaneSize()
+	for _, n := range []int{rows, cols} {
 		if r.Levels >= 1 && r.Levels <= 8 && n%(1<<r.Levels) != 0 {
 			v.fail("recon", i, "levels", fmt.Sprintf("%d levels need a matrix divisible by %d; %d is not", r.Levels, 1<<r.Levels, n),
 				"lower levels or change object.phase_lines / object.readout_points")

@@ -147,6 +147,7 @@ func seedFor(plan uint64, key string) uint64 {
 // Candidates builds the samplings of every scheme and acceleration of p.
 func Candidates(p *Plan) ([]Candidate, error) {
 	ny, nx := p.Object.PhaseLines, p.Object.ReadoutPoints
+	pr, pc := p.PlaneSize()
 	var out []Candidate
 	for si, s := range p.Schemes {
 		for ai, r := range s.Accelerations {
@@ -168,6 +169,8 @@ func Candidates(p *Plan) ([]Candidate, error) {
 				c.Sampling, err = spiralSampling(p, s, int(r))
 			case PatternFan, PatternFanGolden:
 				c.Sampling, err = odtCandidate(p, s, int(r))
+			case Pattern3DUniform, Pattern3DShifted, Pattern3DRandom, Pattern3DPoissonDisc:
+				c.Sampling, err = sampling3D(p, s, r, c.MaskSeed)
 			default:
 				err = fmt.Errorf("pattern %q has no sampling yet", s.Pattern)
 			}
@@ -188,7 +191,7 @@ func Candidates(p *Plan) ([]Candidate, error) {
 			if err != nil {
 				return nil, fmt.Errorf("scheme %q, R = %g: partial Fourier: %w", s.Label, r, err)
 			}
-			if err := c.psf(ny, nx); err != nil {
+			if err := c.psf(pr, pc); err != nil {
 				return nil, fmt.Errorf("scheme %q, R = %g: PSF: %w", s.Label, r, err)
 			}
 			c.Budget = Budget(p, s, c.Sampling.Shots)
@@ -288,7 +291,7 @@ func Run(ctx context.Context, p *Plan, opt Options) (*Outcome, error) {
 	if err != nil {
 		return nil, err
 	}
-	ny, nx := p.Object.PhaseLines, p.Object.ReadoutPoints
+	ny, nx := p.ImageSize()
 	o := &Outcome{Plan: p, Candidates: cands, Started: start}
 	env := &runEnv{plan: p, out: o, clean: newCleanData(len(cands)), ny: ny, nx: nx, journal: opt.Journal}
 	if err := env.setScene(); err != nil {
@@ -482,6 +485,10 @@ type runEnv struct {
 	maps      [][]complex128
 	coilNoise *simulate.NoiseCovariance
 	combine   []float64 // 1/Σ|S_c|² per pixel: the adjoint's coil combination made unbiased
+	// 3D: the phantom's cuts at the readout positions and their spectra on
+	// the plane grid.
+	cuts       []simulate.Ellipses
+	cutSpectra [][]complex128
 	// ODT: the instrument and the specimen.
 	setup    odt.Setup
 	specimen odt.Specimen
@@ -493,8 +500,12 @@ func (env *runEnv) setScene() error {
 	p, o := env.plan, env.out
 	ny, nx := env.ny, env.nx
 	var err error
-	switch p.Modality {
-	case ModalityODT:
+	switch {
+	case p.Is3D():
+		if err := env.scene3D(); err != nil {
+			return err
+		}
+	case p.Modality == ModalityODT:
 		env.setup, env.specimen = odtSetup(p), odtSpecimen(p.Object.Phantom)
 		contrast, err := env.specimen.Contrast(p.Object.FOVum)
 		if err != nil {

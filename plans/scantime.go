@@ -87,6 +87,8 @@ func ShotName(s Scheme) string {
 		return "interleaves"
 	case PatternFan, PatternFanGolden:
 		return "illuminations"
+	case Pattern3DUniform, Pattern3DShifted, Pattern3DRandom, Pattern3DPoissonDisc:
+		return "phase-encode points"
 	}
 	return "lines"
 }

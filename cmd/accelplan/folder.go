@@ -44,7 +44,8 @@ func imageName(o *plans.Outcome, ci, ri int) string {
 // writeFolder writes every output of a run into dir.
 func writeFolder(dir string, o *plans.Outcome, a *plans.Analysis, version, caution string) error {
 	p := o.Plan
-	ny, nx := p.Object.PhaseLines, p.Object.ReadoutPoints
+	ny, nx := p.ImageSize()
+	pr, pc := p.PlaneSize()
 	if err := os.WriteFile(filepath.Join(dir, "plan.toml"), p.Text, 0o644); err != nil {
 		return err
 	}
@@ -131,7 +132,7 @@ func writeFolder(dir string, o *plans.Outcome, a *plans.Analysis, version, cauti
 			return err
 		}
 		psfName := fmt.Sprintf("psf_%s_R%s.png", slug(p.Schemes[c.Scheme].Label), ff(c.AskedR))
-		if err := out.WriteGrayPNG(filepath.Join(img, psfName), psfDecibels(c.PSF), ny, nx, -40, 0); err != nil {
+		if err := out.WriteGrayPNG(filepath.Join(img, psfName), psfDecibels(c.PSF), pr, pc, -40, 0); err != nil {
 			return err
 		}
 		for ri := range p.Recons {
@@ -380,7 +381,7 @@ func writeNoiseMaps(dir string, o *plans.Outcome) error {
 		return nil
 	}
 	p := o.Plan
-	ny, nx := p.Object.PhaseLines, p.Object.ReadoutPoints
+	ny, nx := p.ImageSize()
 	header := []string{"scheme", "asked_R", "method", "replicas", "mean_snr", "mean_g_analytic", "mean_g_replica"}
 	var rows [][]string
 	for _, nm := range o.NoiseMaps {

@@ -69,7 +69,7 @@ func cmdPreview(args []string, stdout, stderr io.Writer) error {
 	c := cands[0]
 	s := p.Schemes[0]
 	smp := c.Sampling
-	ny, nx := p.Object.PhaseLines, p.Object.ReadoutPoints
+	ny, nx := p.PlaneSize()
 	fmt.Fprintf(stdout, "%s (%s), %d×%d\n", s.Label, s.Pattern, ny, nx)
 	fmt.Fprintf(stdout, "acceleration R = %.3f (%d of %d %s acquired)\n", smp.R, smp.Shots, smp.FullShots, plans.ShotName(s))
 	fmt.Fprintf(stdout, "scan time %s (reference %s)\n", duration(c.ScanTime), duration(plans.ScanTime(p, s, smp.FullShots)))

@@ -459,10 +459,11 @@ func pictures(c plans.Candidate, ny, nx int) candidatePictures {
 // reportCandidates builds one report section per candidate × method.
 func reportCandidates(o *plans.Outcome, a *plans.Analysis, limit, lo, hi float64) ([]out.ReportCandidate, error) {
 	p := o.Plan
-	ny, nx := p.Object.PhaseLines, p.Object.ReadoutPoints
+	ny, nx := p.ImageSize()
+	pr, pc := p.PlaneSize()
 	pics := make([]candidatePictures, len(o.Candidates))
 	for ci, c := range o.Candidates {
-		pics[ci] = pictures(c, ny, nx)
+		pics[ci] = pictures(c, pr, pc)
 	}
 	var cands []out.ReportCandidate
 	diff := make([]float64, ny*nx)
@@ -602,7 +603,7 @@ func reportFacts(o *plans.Outcome, version, generated string) []out.ReportFact {
 // buildReport fills the report of a finished run.
 func buildReport(o *plans.Outcome, a *plans.Analysis, version, caution string) (out.Report, error) {
 	p := o.Plan
-	ny, nx := p.Object.PhaseLines, p.Object.ReadoutPoints
+	ny, nx := p.ImageSize()
 	generated := o.Started.Add(o.Elapsed).UTC().Format("2006-01-02 15:04:05 UTC")
 	r := out.Report{
 		Title: p.Title, Caution: strings.TrimPrefix(strings.Join(strings.Fields(caution), " "), "CAUTION: "),
