@@ -24,9 +24,9 @@ import (
 //
 // The shifts come from a PCG stream seeded at construction; Reset restarts
 // it (and resets the wrapped prior if that keeps state), so a reconstruction
-// started after Reset is reproducible. The solvers of this package that take
-// a Prior call Reset at the start of every solve; FISTA (fista.go) does not,
-// so call Reset before each FISTA run.
+// started after Reset is reproducible. FISTARestart calls Reset at the start
+// of every solve; FISTA (fista.go) and ADMM (admm.go) do not, so call Reset
+// before each of their runs.
 //
 // Value returns R(x) in the unshifted frame, the objective that FISTA
 // reports; the randomised iteration does not minimise one fixed objective,

@@ -19,9 +19,10 @@ type Denoiser interface {
 }
 
 // A denoiser or prior that keeps state between calls (a warm start, a random
-// stream) has a Reset method that returns it to its freshly built state. The
-// solvers of this file set call it at the start of every solve, so that a
-// reconstruction never depends on what the same object did before.
+// stream) has a Reset method that returns it to its freshly built state.
+// PnPADMM, PnPFISTA, RED and FISTARestart call it at the start of every
+// solve, so that a reconstruction never depends on what the same object did
+// before.
 type resetter interface{ Reset() }
 
 func resetIfStateful(v any) {

@@ -125,8 +125,9 @@ func (o NLMOptions) validate() error {
 // at its borders (numpy's "reflect" padding), and the result is
 // deterministic.
 //
-// An NLM holds its work space (about seven padded images): make one per
-// goroutine. Denoise allocates nothing.
+// An NLM holds its work space (a padded copy of the image and three
+// image-sized accumulators): make one per goroutine. Denoise allocates
+// nothing.
 type NLM struct {
 	opt    NLMOptions
 	ny, nx int
@@ -440,4 +441,7 @@ func iabs(n int) int {
 	return n
 }
 
-var nlmCutoff = 40.0
+// nlmCutoff is the exponent beyond which a weight is taken as zero: e⁻⁴⁰ is
+// 4e-18 of the weight 1 that every pixel gives itself, below the rounding of
+// the normalised sum.
+const nlmCutoff = 40.0
