@@ -35,7 +35,8 @@ type Rect struct {
 // implements Phantom: Spectrum is the exact continuous Fourier transform and
 // Rasterize the exact area average over each pixel. Parts outside the FOV
 // are left out of Rasterize and Support but not of Spectrum; keep shapes
-// inside the FOV when both are compared.
+// inside the FOV when both are compared. Its methods only read it, so they
+// are safe for concurrent use.
 type Shapes struct {
 	Ellipses Ellipses
 	Rects    []Rect
