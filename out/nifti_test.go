@@ -631,3 +631,25 @@ func ExampleWriteNIfTI() {
 	fmt.Println(dims, pixdim[0] == float64(float32(0.9)), back)
 	// Output: [3 2] true [0 0.25 0.5 0.75 1 1.25]
 }
+
+func BenchmarkWriteNIfTI256(b *testing.B) {
+	img := benchImage(256)
+	path := filepath.Join(b.TempDir(), "b.nii")
+	for b.Loop() {
+		if err := WriteNIfTI(path, img, 256, 256, [2]float64{1, 1}, "bench"); err != nil {
+			b.Fatal(err)
+		}
+	}
+}
+
+func BenchmarkReadNIfTI256(b *testing.B) {
+	path := filepath.Join(b.TempDir(), "b.nii")
+	if err := WriteNIfTI(path, benchImage(256), 256, 256, [2]float64{1, 1}, "bench"); err != nil {
+		b.Fatal(err)
+	}
+	for b.Loop() {
+		if _, _, _, err := ReadNIfTI(path); err != nil {
+			b.Fatal(err)
+		}
+	}
+}
