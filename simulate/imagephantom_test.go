@@ -46,7 +46,7 @@ func mustImagePhantom(t testing.TB, img []float64, ny, nx int) *ImagePhantom {
 
 // bruteSpectrum is the pixel sum of the box-pixel transform written out term
 // by term, each phase from its own Sincos: the definition, independent of
-// the Horner and FFT paths.
+// the table and direct-sum paths.
 func bruteSpectrum(img []float64, ny, nx int, kx, ky float64) complex128 {
 	var s complex128
 	for i := range ny {
@@ -126,7 +126,7 @@ func TestImagePhantomRectangleTransform(t *testing.T) {
 }
 
 // The Cartesian values (one FFT of the object, then a lookup) equal the
-// direct sum (Horner) and the term-by-term definition at random grid points,
+// direct sum and the term-by-term definition at random grid points,
 // within 1e-10 of F(0); so do direct evaluations at random off-grid points.
 func TestImagePhantomCartesianMatchesDirect(t *testing.T) {
 	for _, sz := range [][2]int{{64, 64}, {45, 52}, {37, 29}} {
