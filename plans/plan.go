@@ -204,6 +204,8 @@ type Recon struct {
 type Acceptance struct {
 	Metric    string  `toml:"metric"`
 	Threshold float64 `toml:"threshold"`
+	// Contrast picks the disc row scored by metric smallest-disc.
+	Contrast float64 `toml:"contrast"`
 }
 
 // The pattern, method and metric names a plan may use.
@@ -244,8 +246,8 @@ var (
 		Pattern3DUniform, Pattern3DShifted, Pattern3DRandom, Pattern3DPoissonDisc}
 	spokeOrders = []string{"golden", "tiny-golden", "uniform", "rational-golden"}
 	methods     = []string{MethodZeroFilled, MethodFISTAWavelet, MethodTikhonov, MethodTV, MethodTGV, MethodADMMWavelet, MethodCGSENSE, MethodHomodyne, MethodPOCS, MethodFISTABox}
-	metrics     = []string{MetricSSIM, MetricPSNR, MetricNRMSE}
-	phantoms    = []string{"modified-shepp-logan", "modified-shepp-logan-3d"}
+	metrics     = []string{MetricSSIM, MetricPSNR, MetricNRMSE, MetricSmallestDisc, MetricMTF50}
+	phantoms    = []string{"modified-shepp-logan", PhantomLowContrast, PhantomResolution, "modified-shepp-logan-3d"}
 	wavelets    = []string{"haar", "db2", "db3", "db4", "db5", "db6", "db7", "db8"}
 )
 
@@ -668,8 +670,9 @@ func (v *validator) accept(p *Plan) {
 	lo, hi := thresholdRange(a.Metric)
 	if !finite(a.Threshold) || a.Threshold <= lo || a.Threshold >= hi {
 		v.fail("accept", -1, "threshold", fmt.Sprintf("must lie strictly between %v and %v for %s, got %v", lo, hi, a.Metric, a.Threshold),
-			"e.g. 0.9 for ssim, 30 for psnr (dB), 0.1 for nrmse")
+			"e.g. 0.9 for ssim, 30 for psnr (dB), 0.1 for nrmse, 4 for smallest-disc (mm), 0.5 for mtf50 (cycles/mm)")
 	}
+	v.taskMetric(p)
 }
 
 func thresholdRange(metric string) (lo, hi float64) {
@@ -678,6 +681,10 @@ func thresholdRange(metric string) (lo, hi float64) {
 		return 0, 200
 	case MetricNRMSE:
 		return 0, 10
+	case MetricSmallestDisc:
+		return 0, 1000
+	case MetricMTF50:
+		return 0, 100
 	}
 	return 0, 1
 }

@@ -21,6 +21,7 @@ type Row struct {
 	NRMSE      Summary
 	PSNR       Summary
 	SSIM       Summary
+	Task       Summary // the task-based metric, when the plan has one
 	Lambda     float64
 	LambdaRule string
 	Meets      bool // the confidence bound of the acceptance metric meets the threshold
@@ -33,6 +34,8 @@ func (r Row) Metric(name string) Summary {
 		return r.PSNR
 	case MetricNRMSE:
 		return r.NRMSE
+	case MetricSmallestDisc, MetricMTF50:
+		return r.Task
 	}
 	return r.SSIM
 }
@@ -87,16 +90,17 @@ func Analyse(o *Outcome) *Analysis {
 		for ri := range p.Recons {
 			base := (ci*nr + ri) * p.Repeats
 			res := o.Results[base : base+p.Repeats]
-			var n, ps, ss []float64
+			var n, ps, ss, tk []float64
 			for _, r := range res {
 				n = append(n, r.NRMSE)
 				ps = append(ps, r.PSNR)
 				ss = append(ss, r.SSIM)
+				tk = append(tk, r.Task)
 			}
 			row := Row{Candidate: ci, Recon: ri, Scheme: p.Schemes[c.Scheme].Label, Method: p.Recons[ri].Label,
 				AskedR: c.AskedR, R: c.Sampling.R, Shots: c.Sampling.Shots, FullShots: c.Sampling.FullShots,
 				ShotKind: ShotName(p.Schemes[c.Scheme]), ScanTime: c.ScanTime,
-				NRMSE: Summarize(n), PSNR: Summarize(ps), SSIM: Summarize(ss),
+				NRMSE: Summarize(n), PSNR: Summarize(ps), SSIM: Summarize(ss), Task: Summarize(tk),
 				Lambda: res[0].Lambda, LambdaRule: res[0].LambdaRule}
 			row.Meets = meets(row.Bound(a.Metric), a.Threshold, a.Metric)
 			a.Rows = append(a.Rows, row)

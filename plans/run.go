@@ -58,7 +58,10 @@ type Result struct {
 	NRMSE      float64
 	PSNR       float64
 	SSIM       float64
-	Seconds    float64 // wall time of the reconstruction
+	// Task is the task-based metric of the plan (smallest-disc, mtf50),
+	// 0 when the plan has none.
+	Task    float64
+	Seconds float64 // wall time of the reconstruction
 }
 
 // Metric returns the named quality figure of r.
@@ -68,12 +71,14 @@ func (r Result) Metric(name string) float64 {
 		return r.PSNR
 	case MetricNRMSE:
 		return r.NRMSE
+	case MetricSmallestDisc, MetricMTF50:
+		return r.Task
 	}
 	return r.SSIM
 }
 
 // HigherIsBetter reports whether larger values of metric mean better images.
-func HigherIsBetter(metric string) bool { return metric != MetricNRMSE }
+func HigherIsBetter(metric string) bool { return metric != MetricNRMSE && metric != MetricSmallestDisc }
 
 // Tuning records how λ was fixed for one candidate and method.
 type Tuning struct {
@@ -475,9 +480,11 @@ type runEnv struct {
 	tuned []chan struct{}
 	// The scene: what is imaged and how quality is measured.
 	dataRange float64 // L of PSNR and SSIM: max − min of the truth
-	realPart  bool    // score the real part (an index contrast) instead of the magnitude
+	// task scores the plan's task-based metric, nil when it has none.
+	task     func(img []float64, rows, cols int) (float64, error)
+	realPart bool // score the real part (an index contrast) instead of the magnitude
 	// MRI: the analytic phantom and its spectrum on the centred grid.
-	phantom  simulate.Phantom
+	phantom  supportedPhantom
 	spectrum []complex128
 	// MRI with a receive array: the coils, their maps on the grid and the
 	// coil noise covariance (nil coils: one uniform coil).
@@ -494,12 +501,18 @@ type runEnv struct {
 	specimen odt.Specimen
 }
 
+// supportedPhantom is a phantom that also knows the region it occupies,
+// where quality is scored.
+type supportedPhantom interface {
+	simulate.Phantom
+	Support(nx, ny int) []bool
+}
+
 // setScene fills the truth, support and noise level of the run and what the
 // encodings need, for the plan's modality.
 func (env *runEnv) setScene() error {
 	p, o := env.plan, env.out
 	ny, nx := env.ny, env.nx
-	var err error
 	switch {
 	case p.Is3D():
 		if err := env.scene3D(); err != nil {
@@ -521,16 +534,27 @@ func (env *runEnv) setScene() error {
 		}
 		env.realPart = true
 	default:
-		ph := simulate.ModifiedSheppLogan()
-		env.phantom = ph
+		ph, task, err := taskPhantom(p)
+		if err != nil {
+			return err
+		}
+		env.phantom, env.task = ph, task
 		o.Truth = ph.Rasterize(nx, ny)
 		o.Support = ph.Support(nx, ny)
+		// The separable fast path of shape phantoms, where there is one.
+		type gridSpectrum interface {
+			CartesianSpectrum(nx, ny int) []complex128
+		}
 		if o.Sigma, err = simulate.NoiseSigma(o.Truth, o.Support, p.Scanner.ReferenceSNR); err != nil {
 			return err
 		}
 		// The noiseless spectrum on the whole centred grid, drawn from the
 		// analytic phantom once and shared read-only by every worker.
-		env.spectrum = simulate.CartesianSpectrum(ph, nx, ny)
+		if g, ok := ph.(gridSpectrum); ok {
+			env.spectrum = g.CartesianSpectrum(nx, ny)
+		} else {
+			env.spectrum = simulate.CartesianSpectrum(ph, nx, ny)
+		}
 		if n := p.Scanner.Coils; n > 1 {
 			if env.coils, err = simulate.DefaultCoilRing(n).Build(); err != nil {
 				return err
@@ -663,7 +687,7 @@ func (w *workerState) do(j job) error {
 	w.project(img)
 	r := Result{Candidate: j.cand, Recon: j.recon, Repeat: j.repeat, NoiseSeed: seed,
 		Lambda: lambda, LambdaRule: rule, Iterations: iters, Seconds: sec}
-	if r.NRMSE, r.PSNR, r.SSIM, err = w.score(w.mag); err != nil {
+	if r.NRMSE, r.PSNR, r.SSIM, r.Task, err = w.score(w.mag); err != nil {
 		return err
 	}
 	idx := (j.cand*len(p.Recons)+j.recon)*p.Repeats + j.repeat
@@ -713,13 +737,18 @@ func (w *workerState) project(img []complex128) {
 	simulate.Magnitude(w.mag, img)
 }
 
-// SSIM is averaged over the support pixels (AverageAll), the others over the
-// same pixels.
-func (w *workerState) score(mag []float64) (nrmse, psnr, ssim float64, err error) {
+// score returns NRMSE, PSNR and SSIM of an image inside the support (SSIM
+// averaged over the support pixels, AverageAll), and the plan's task metric.
+func (w *workerState) score(mag []float64) (nrmse, psnr, ssim, task float64, err error) {
 	o := w.env.out
 	nrmse = quality.NRMSE(mag, o.Truth, o.Support)
 	psnr = quality.PSNR(mag, o.Truth, o.Support, w.env.dataRange)
-	ssim, err = w.ssim.Mean(mag, o.Truth, o.Support, quality.AverageAll)
+	if ssim, err = w.ssim.Mean(mag, o.Truth, o.Support, quality.AverageAll); err != nil {
+		return
+	}
+	if w.env.task != nil {
+		task, err = w.env.task(mag, w.env.ny, w.env.nx)
+	}
 	return
 }
 
@@ -771,11 +800,17 @@ func (w *workerState) search(ri int, enc *encoding, y []complex128) (best, score
 			return math.Inf(1)
 		}
 		w.project(img)
-		n, ps, ss, err := w.score(w.mag)
+		n, ps, ss, task, err := w.score(w.mag)
 		if err != nil && firstErr == nil {
 			firstErr = err
 		}
-		return sign * Result{NRMSE: n, PSNR: ps, SSIM: ss}.Metric(metric)
+		v := Result{NRMSE: n, PSNR: ps, SSIM: ss, Task: task}.Metric(metric)
+		if math.IsInf(v, 0) {
+			// No disc detected: worse than any detection, but ordered
+			// so the search can still move.
+			v = 1e6
+		}
+		return sign * v
 	}
 	best, trace, err := priors.TuneLambda(cost, rc.LambdaLook[0], rc.LambdaLook[1], tuneEvals)
 	if firstErr != nil {

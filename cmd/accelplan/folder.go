@@ -52,6 +52,10 @@ func writeFolder(dir string, o *plans.Outcome, a *plans.Analysis, version, cauti
 	// results.csv: one row per candidate, method and scored noise draw.
 	header := []string{"scheme", "pattern", "asked_R", "achieved_R", "lines", "scan_time_s", "scan_time", "method",
 		"lambda_rel", "lambda_rule", "repeat", "noise_seed", "nrmse", "psnr_db", "ssim", "iterations", "recon_seconds"}
+	task := isTask(p.Accept.Metric)
+	if task {
+		header = append(header, taskColumn(p.Accept.Metric))
+	}
 	var rows [][]string
 	for _, r := range o.Results {
 		c := o.Candidates[r.Candidate]
@@ -60,20 +64,31 @@ func writeFolder(dir string, o *plans.Outcome, a *plans.Analysis, version, cauti
 			ff(c.ScanTime), out.FormatMinSec(c.ScanTime), p.Recons[r.Recon].Label, ff(r.Lambda), r.LambdaRule,
 			strconv.Itoa(r.Repeat), strconv.FormatUint(r.NoiseSeed, 10), ff(r.NRMSE), ff(r.PSNR), ff(r.SSIM),
 			strconv.Itoa(r.Iterations), strconv.FormatFloat(r.Seconds, 'f', 4, 64)})
+		if task {
+			rows[len(rows)-1] = append(rows[len(rows)-1], ff(r.Task))
+		}
 	}
 	if err := out.WriteCSV(filepath.Join(dir, "results.csv"), header, rows); err != nil {
 		return err
 	}
 	// summary.csv: one row per candidate and method.
 	header = []string{"scheme", "method", "asked_R", "achieved_R", "lines", "psf_sidelobe_to_peak", "scan_time_s", "scan_time", "draws"}
-	for _, m := range []string{"ssim", "psnr_db", "nrmse"} {
+	names := []string{"ssim", "psnr_db", "nrmse"}
+	if task {
+		names = append(names, taskColumn(p.Accept.Metric))
+	}
+	for _, m := range names {
 		header = append(header, m+"_mean", m+"_sd", m+"_lower95", m+"_upper95")
 	}
 	header = append(header, "imaging_s", "dummy_s", "calibration_s", "time_formula", "lambda_rel", "lambda_rule", "meets_bar", "recommended")
 	rows = rows[:0]
 	for i, r := range a.Rows {
 		row := []string{r.Scheme, r.Method, ff(r.AskedR), ff(r.R), strconv.Itoa(r.Shots), ff(o.Candidates[r.Candidate].SideLobe), ff(r.ScanTime), out.FormatMinSec(r.ScanTime), strconv.Itoa(r.SSIM.N)}
-		for _, s := range []plans.Summary{r.SSIM, r.PSNR, r.NRMSE} {
+		sums := []plans.Summary{r.SSIM, r.PSNR, r.NRMSE}
+		if task {
+			sums = append(sums, r.Task)
+		}
+		for _, s := range sums {
 			row = append(row, ff(s.Mean), ff(s.Std), ff(s.Lower), ff(s.Upper))
 		}
 		rec := "no"
@@ -402,4 +417,16 @@ func writeNoiseMaps(dir string, o *plans.Outcome) error {
 			ff(nm.MeanSNR), opt(nm.MeanG, nm.GAnalytic != nil), opt(nm.MeanGReplica, nm.GReplica != nil)})
 	}
 	return out.WriteCSV(filepath.Join(dir, "noise_maps.csv"), header, rows)
+}
+
+func isTask(metric string) bool {
+	return metric == plans.MetricSmallestDisc || metric == plans.MetricMTF50
+}
+
+// taskColumn names a task metric's column, with its unit.
+func taskColumn(metric string) string {
+	if metric == plans.MetricMTF50 {
+		return "mtf50_per_mm"
+	}
+	return "smallest_disc_mm"
 }

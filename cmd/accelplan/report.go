@@ -6,6 +6,7 @@ import (
 	"math"
 	"path/filepath"
 	"runtime"
+	"slices"
 	"strconv"
 	"strings"
 
@@ -17,6 +18,16 @@ import (
 // the order they are shown after the acceptance metric.
 var reportMetrics = []string{plans.MetricSSIM, plans.MetricPSNR, plans.MetricNRMSE}
 
+// metricsOf lists the metrics of a plan's outputs: the image metrics, and
+// the task-based acceptance metric when the plan has one.
+func metricsOf(p *plans.Plan) []string {
+	m := append([]string(nil), reportMetrics...)
+	if !slices.Contains(m, p.Accept.Metric) {
+		m = append(m, p.Accept.Metric)
+	}
+	return m
+}
+
 // metricTitle is the display name of a metric in the report. It must match
 // the acceptance metric's name (case-insensitively) so that the writer can
 // find the acceptance value of each candidate.
@@ -24,8 +35,13 @@ func metricTitle(m string) string { return strings.ToUpper(m) }
 
 // metricAxis labels a chart's vertical axis, with the unit where there is one.
 func metricAxis(m string) string {
-	if m == plans.MetricPSNR {
+	switch m {
+	case plans.MetricPSNR:
 		return "PSNR (dB)"
+	case plans.MetricSmallestDisc:
+		return "smallest disc detected (mm)"
+	case plans.MetricMTF50:
+		return "MTF50 (cycles/mm)"
 	}
 	return metricTitle(m)
 }
@@ -315,7 +331,7 @@ func finite(x float64) bool { return !math.IsNaN(x) && !math.IsInf(x, 0) }
 func reportCharts(o *plans.Outcome, a *plans.Analysis, caution string) ([]out.ReportChart, error) {
 	p := o.Plan
 	order := []string{a.Metric}
-	for _, m := range reportMetrics {
+	for _, m := range metricsOf(p) {
 		if m != a.Metric {
 			order = append(order, m)
 		}
@@ -381,7 +397,7 @@ func reportCharts(o *plans.Outcome, a *plans.Analysis, caution string) ([]out.Re
 // grouped by curve (scheme · method) and in order of scan time within it.
 func reportTable(o *plans.Outcome, a *plans.Analysis) out.ReportTable {
 	t := out.ReportTable{Header: []string{"sampling", "reconstruction", "asked R", "achieved R", "acquired", "scan time", "PSF side lobe / peak"}}
-	for _, m := range reportMetrics {
+	for _, m := range metricsOf(o.Plan) {
 		t.Header = append(t.Header, metricAxis(m)+" mean ± SD", metricTitle(m)+" "+strings.TrimSuffix(boundName(m), " bound"))
 	}
 	t.Header = append(t.Header, "λ (relative)", "λ chosen")
@@ -391,7 +407,7 @@ func reportTable(o *plans.Outcome, a *plans.Analysis) out.ReportTable {
 			cells := []string{r.Scheme, methodShort(o.Plan.Recons[r.Recon], gridded(o, o.Candidates[r.Candidate].Scheme)), askedR(r), fmtR(r.R),
 				fmt.Sprintf("%d of %d %s", r.Shots, r.FullShots, r.ShotKind),
 				scanTimeText(r.ScanTime), fmtNum(o.Candidates[r.Candidate].SideLobe)}
-			for _, m := range reportMetrics {
+			for _, m := range metricsOf(o.Plan) {
 				s := r.Metric(m)
 				cells = append(cells, fmtNum(s.Mean)+" ± "+fmtSD(s.Std), fmtNum(r.Bound(m)))
 			}
@@ -488,7 +504,7 @@ func reportCandidates(o *plans.Outcome, a *plans.Analysis, limit, lo, hi float64
 			}
 			rc.Extra = append(rc.Extra, figs...)
 		}
-		for _, m := range reportMetrics {
+		for _, m := range metricsOf(p) {
 			sm := r.Metric(m)
 			if !finite(sm.Mean) {
 				continue
