@@ -2,6 +2,7 @@ package plans
 
 import (
 	"fmt"
+	"math"
 	"sync"
 
 	"accelplan/priors"
@@ -80,6 +81,17 @@ func (w *workerState) encodingFor(ci int) (*encoding, error) {
 		env.clean.once[ci].Do(func() {
 			// The exact spectrum of the analytic phantom at every
 			// trajectory point: no gridding of the truth is involved.
+			if im, ok := env.phantom.(*simulate.ImagePhantom); ok {
+				// A gridded object: its batch path, scaled like
+				// CartesianSample.
+				d, err := im.SpectrumPoints(kx, ky)
+				scale := complex(math.Sqrt(float64(env.nx*env.ny)), 0)
+				for j := range d {
+					d[j] *= scale
+				}
+				env.clean.data[ci], env.clean.err[ci] = d, err
+				return
+			}
 			d := make([]complex128, len(s.K))
 			for j, k := range s.K {
 				d[j] = simulate.CartesianSample(env.phantom, k[0], k[1], env.nx, env.ny)

@@ -254,7 +254,7 @@ func candidateKey(p *Plan, s Scheme, r float64) string {
 	s.Interleaves = nil
 	sc := p.Scanner
 	sc.TRms, sc.EchoTrain, sc.Averages = 0, 0, 0 // scan time only
-	return contentKey("candidate", p.Seed, p.Object, sc, s, r)
+	return contentKey("candidate", p.Seed, p.Object, p.imageHash, sc, s, r)
 }
 
 // reconKey identifies a reconstruction method by its definition.

@@ -17,6 +17,7 @@ import (
 
 	"github.com/BurntSushi/toml"
 
+	"accelplan/simulate"
 	"accelplan/trajectories"
 )
 
@@ -92,6 +93,11 @@ type Plan struct {
 	// plan); Text is its content, kept for hashing and the manifest.
 	Source string `toml:"-"`
 	Text   []byte `toml:"-"`
+	// The user's object, loaded and refined for the grid when the plan
+	// names one, its file's SHA-256 and what the loader warned about.
+	image        *simulate.ImagePhantom
+	imageHash    string
+	ImageNotices []string `toml:"-"`
 }
 
 // Object says what is imaged and on which grid it is reconstructed.
@@ -100,6 +106,11 @@ type Object struct {
 	PhaseLines    int     `toml:"phase_lines"`
 	ReadoutPoints int     `toml:"readout_points"`
 	FOVmm         float64 `toml:"fov_mm"`
+	// Image is the user's own object (phantom = "image"): an 8/16-bit PNG
+	// or a NIfTI-1 file, relative to the plan's folder; Slice picks the
+	// slice of a volume.
+	Image string `toml:"image"`
+	Slice int    `toml:"slice"`
 	// 3D Cartesian: the kz phase-encode count, and the readout positions
 	// (FOV units) of the planes that are reconstructed.
 	Partitions       int       `toml:"partitions"`
@@ -247,7 +258,7 @@ var (
 	spokeOrders = []string{"golden", "tiny-golden", "uniform", "rational-golden"}
 	methods     = []string{MethodZeroFilled, MethodFISTAWavelet, MethodTikhonov, MethodTV, MethodTGV, MethodADMMWavelet, MethodCGSENSE, MethodHomodyne, MethodPOCS, MethodFISTABox}
 	metrics     = []string{MetricSSIM, MetricPSNR, MetricNRMSE, MetricSmallestDisc, MetricMTF50}
-	phantoms    = []string{"modified-shepp-logan", PhantomLowContrast, PhantomResolution, "modified-shepp-logan-3d"}
+	phantoms    = []string{"modified-shepp-logan", PhantomLowContrast, PhantomResolution, PhantomImage, "modified-shepp-logan-3d"}
 	wavelets    = []string{"haar", "db2", "db3", "db4", "db5", "db6", "db7", "db8"}
 )
 
@@ -582,6 +593,9 @@ func (v *validator) plan(p *Plan) {
 		v.object3D(p)
 	} else if o.ReadoutPositions != nil {
 		v.fail("object", -1, "readout_positions", "applies to 3D plans only", "set object.partitions for a 3D scan, or remove it")
+	}
+	if o.Phantom == PhantomImage || o.Image != "" || o.Slice != 0 {
+		v.userImage(p)
 	}
 	if o.Phantom == "modified-shepp-logan-3d" && o.Partitions == 0 {
 		v.fail("object", -1, "phantom", "the 3D phantom needs a 3D plan", "set object.partitions, or use modified-shepp-logan")

@@ -72,6 +72,9 @@ func taskPhantom(p *Plan) (supportedPhantom, func(img []float64, rows, cols int)
 		}
 		return ph, score, nil
 	}
+	if p.Object.Phantom == PhantomImage && p.image != nil {
+		return p.image, nil, nil
+	}
 	return simulate.ModifiedSheppLogan(), nil, nil
 }
 

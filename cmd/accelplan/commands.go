@@ -69,6 +69,9 @@ func runOrMerge(ctx context.Context, name string, args []string, stdout, stderr 
 	if *workers < 0 {
 		return fmt.Errorf("-workers must be 0 (all cores) or more, got %d", *workers)
 	}
+	for _, n := range p.ImageNotices {
+		fmt.Fprintf(stderr, "accelplan: object.image: %s\n", n)
+	}
 	dir := p.Output
 	if *outDir != "" {
 		dir = *outDir

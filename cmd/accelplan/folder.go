@@ -171,9 +171,15 @@ func writeFolder(dir string, o *plans.Outcome, a *plans.Analysis, version, cauti
 	if err := writeNoiseMaps(dir, o); err != nil {
 		return err
 	}
+	if err := writeNIfTI(dir, o, errLimit); err != nil {
+		return err
+	}
 	var b strings.Builder
 	printRecommendation(&b, o, a, p.Output)
 	fmt.Fprintf(&b, "\nError maps share one colour scale: ±%.3g (reconstruction − truth).\n", errLimit)
+	for _, n := range p.ImageNotices {
+		fmt.Fprintf(&b, "Object image: %s\n", n)
+	}
 	fmt.Fprintf(&b, "accelplan %s; plan %s; seed %d; noise σ per sample %.4g.\n\n%s\n", version, planName(p), p.Seed, o.Sigma, caution)
 	return os.WriteFile(filepath.Join(dir, "recommendation.txt"), []byte(b.String()), 0o644)
 }
@@ -429,4 +435,46 @@ func taskColumn(metric string) string {
 		return "mtf50_per_mm"
 	}
 	return "smallest_disc_mm"
+}
+
+// writeNIfTI exports the truth, the first scored reconstruction of every
+// point and its error map as NIfTI-1 (float32, pixel size FOV/N in mm), for
+// other tools.
+func writeNIfTI(dir string, o *plans.Outcome, errLimit float64) error {
+	p := o.Plan
+	ny, nx := p.ImageSize()
+	nd := filepath.Join(dir, "nifti")
+	if err := os.MkdirAll(nd, 0o755); err != nil {
+		return err
+	}
+	fov := p.Object.FOVmm
+	if p.Modality == plans.ModalityODT {
+		fov = p.Object.FOVum / 1000
+	}
+	pr, pc := p.PlaneSize()
+	pix := [2]float64{fov / float64(pc), fov / float64(pr)}
+	desc := func(what string) string { return "accelplan " + version + " " + what }
+	if err := out.WriteNIfTI(filepath.Join(nd, "truth.nii"), o.Truth, ny, nx, pix, desc("truth")); err != nil {
+		return err
+	}
+	diff := make([]float64, ny*nx)
+	for ci := range o.Candidates {
+		for ri := range p.Recons {
+			m := o.Images[ci][ri]
+			if len(m) != ny*nx {
+				continue
+			}
+			stem := imageName(o, ci, ri)
+			if err := out.WriteNIfTI(filepath.Join(nd, stem+".nii"), m, ny, nx, pix, desc("reconstruction")); err != nil {
+				return err
+			}
+			for i := range m {
+				diff[i] = m[i] - o.Truth[i]
+			}
+			if err := out.WriteNIfTI(filepath.Join(nd, stem+"_error.nii"), diff, ny, nx, pix, desc("error")); err != nil {
+				return err
+			}
+		}
+	}
+	return nil
 }

@@ -2,12 +2,16 @@ package main
 
 import (
 	"bytes"
+	"encoding/json"
+	"math"
 	"os"
+	"os/exec"
 	"path/filepath"
 	"strings"
 	"testing"
 
 	"accelplan/plans"
+	"accelplan/simulate"
 )
 
 // quickPlan is the built-in plan cut down to run in a second.
@@ -230,5 +234,55 @@ func TestPreview(t *testing.T) {
 	}
 	if code, _, stderr := runCmd("preview", "-pattern", "radial", "-R", "0.5", "-out", dir); code == 0 || !strings.Contains(stderr, "accelerations") {
 		t.Errorf("R = 0.5 accepted or unclear: %q", stderr)
+	}
+}
+
+// The NIfTI-1 exports are read back by nibabel (Debian python3-nibabel), a
+// reference reader outside the project: shape, voxels and pixel size.
+func TestNIfTIExportsReadByNibabel(t *testing.T) {
+	py := "/usr/bin/python3"
+	if err := exec.Command(py, "-c", "import nibabel").Run(); err != nil {
+		if os.Getenv("CI") != "" {
+			t.Fatalf("nibabel is missing under CI: %v", err)
+		}
+		t.Skip("nibabel not installed")
+	}
+	dir := t.TempDir()
+	res := filepath.Join(dir, "res")
+	plan := filepath.Join(dir, "p.toml")
+	write(t, plan, quickPlan(res))
+	if code, _, stderr := runCmd("run", "-quiet", plan); code != 0 {
+		t.Fatalf("run: %s", stderr)
+	}
+	script := `import sys, json, nibabel, numpy
+img = nibabel.load(sys.argv[1])
+d = numpy.asarray(img.dataobj, dtype=float)
+print(json.dumps({"shape": list(d.shape), "sum": float(d.sum()), "pixdim": [float(v) for v in img.header.get_zooms()]}))`
+	outp, err := exec.Command(py, "-c", script, filepath.Join(res, "nifti", "truth.nii")).Output()
+	if err != nil {
+		t.Fatalf("nibabel could not read truth.nii: %v", err)
+	}
+	var got struct {
+		Shape  []int
+		Sum    float64
+		Pixdim []float64
+	}
+	if err := json.Unmarshal(outp, &got); err != nil {
+		t.Fatalf("%v: %s", err, outp)
+	}
+	// The quick plan: 32 × 32 over 200 mm; nibabel's shape is (x, y).
+	if len(got.Shape) < 2 || got.Shape[0] != 32 || got.Shape[1] != 32 || math.Abs(got.Pixdim[0]-200.0/32) > 1e-4 {
+		t.Errorf("nibabel sees shape %v, pixdim %v", got.Shape, got.Pixdim)
+	}
+	ph := simulate.ModifiedSheppLogan()
+	var want float64
+	for _, v := range ph.Rasterize(32, 32) {
+		want += v
+	}
+	if math.Abs(got.Sum-want) > 1e-4*want {
+		t.Errorf("voxel sum %v, truth %v (float32 rounding allowed)", got.Sum, want)
+	}
+	if _, err := os.Stat(filepath.Join(res, "nifti", "cartesian-uniform-1_R2_zero-filled_error.nii")); err != nil {
+		t.Error("no error-map export")
 	}
 }
