@@ -209,6 +209,13 @@ type Recon struct {
 	Tikhonov string `toml:"tikhonov"`
 	// TGV: α₀/α₁, the weight of the second-order term relative to λ = α₁.
 	TGVRatio float64 `toml:"tgv_ratio"`
+	// Plug-and-play and RED: the denoiser ("tv", "wavelet", "wavelet-spin",
+	// "nlm").
+	Denoiser string `toml:"denoiser"`
+	// FISTA-wavelet options: random circular shifts per iteration (cycle
+	// spinning) and adaptive restart ("gradient" or "function").
+	CycleSpinning bool   `toml:"cycle_spinning"`
+	Restart       string `toml:"restart"`
 }
 
 // Acceptance is the quality bar a protocol must meet.
@@ -241,6 +248,9 @@ const (
 	MethodCGSENSE      = "cg-sense"
 	MethodHomodyne     = "homodyne"
 	MethodPOCS         = "pocs"
+	MethodPnPADMM      = "pnp-admm"
+	MethodPnPFISTA     = "pnp-fista"
+	MethodRED          = "red"
 
 	RuleCalibration = "calibration"
 	RuleDiscrepancy = "discrepancy"
@@ -256,10 +266,12 @@ var (
 	patterns = []string{PatternUniform, PatternRandom, PatternRadial, PatternSpiral, PatternFan, PatternFanGolden,
 		Pattern3DUniform, Pattern3DShifted, Pattern3DRandom, Pattern3DPoissonDisc}
 	spokeOrders = []string{"golden", "tiny-golden", "uniform", "rational-golden"}
-	methods     = []string{MethodZeroFilled, MethodFISTAWavelet, MethodTikhonov, MethodTV, MethodTGV, MethodADMMWavelet, MethodCGSENSE, MethodHomodyne, MethodPOCS, MethodFISTABox}
-	metrics     = []string{MetricSSIM, MetricPSNR, MetricNRMSE, MetricSmallestDisc, MetricMTF50}
-	phantoms    = []string{"modified-shepp-logan", PhantomLowContrast, PhantomResolution, PhantomImage, "modified-shepp-logan-3d"}
-	wavelets    = []string{"haar", "db2", "db3", "db4", "db5", "db6", "db7", "db8"}
+	methods     = []string{MethodZeroFilled, MethodFISTAWavelet, MethodTikhonov, MethodTV, MethodTGV, MethodADMMWavelet, MethodCGSENSE, MethodHomodyne, MethodPOCS,
+		MethodPnPADMM, MethodPnPFISTA, MethodRED, MethodFISTABox}
+	metrics   = []string{MetricSSIM, MetricPSNR, MetricNRMSE, MetricSmallestDisc, MetricMTF50}
+	phantoms  = []string{"modified-shepp-logan", PhantomLowContrast, PhantomResolution, PhantomImage, "modified-shepp-logan-3d"}
+	denoisers = []string{"tv", "wavelet", "wavelet-spin", "nlm"}
+	wavelets  = []string{"haar", "db2", "db3", "db4", "db5", "db6", "db7", "db8"}
 )
 
 // partialFourierRecon checks a homodyne or POCS reconstruction: single-coil
@@ -956,6 +968,26 @@ func (v *validator) recon(p *Plan, i int) {
 	if r.Method != MethodTGV && r.TGVRatio != 0 {
 		v.fail("recon", i, "tgv_ratio", "applies to method "+MethodTGV+" only", "remove it")
 	}
+	pnp := r.Method == MethodPnPADMM || r.Method == MethodPnPFISTA || r.Method == MethodRED
+	if pnp {
+		if r.Denoiser == "" {
+			r.Denoiser = "tv"
+		}
+		if !oneOf(r.Denoiser, denoisers) {
+			v.fail("recon", i, "denoiser", fmt.Sprintf("unknown denoiser %q", r.Denoiser), "choose one of: "+strings.Join(denoisers, ", "))
+		}
+		if r.Label == r.Method {
+			r.Label = r.Method + " " + r.Denoiser
+		}
+	} else if r.Denoiser != "" {
+		v.fail("recon", i, "denoiser", "applies to pnp-admm, pnp-fista and red only", "remove it")
+	}
+	if r.Method != MethodFISTAWavelet && (r.CycleSpinning || r.Restart != "") {
+		v.fail("recon", i, "cycle_spinning", "cycle_spinning and restart apply to fista-wavelet only", "remove them")
+	}
+	if r.Restart != "" && r.Restart != "gradient" && r.Restart != "function" {
+		v.fail("recon", i, "restart", fmt.Sprintf("unknown restart rule %q", r.Restart), "choose gradient or function")
+	}
 	if !usesWavelet && (r.Wavelet != "" || r.Levels != 0) {
 		v.fail("recon", i, "wavelet", "method "+r.Method+" uses no wavelet", "remove wavelet and levels")
 	}
@@ -1033,8 +1065,14 @@ func (v *validator) iterLambda(p *Plan, i int) {
 	}
 	if r.LambdaLook == nil && r.Lambda == 0 {
 		r.LambdaLook = []float64{1e-4, 1e-1}
-		if r.Method == MethodTikhonov || r.Method == MethodCGSENSE {
+		switch r.Method {
+		case MethodTikhonov, MethodCGSENSE:
 			r.LambdaLook = []float64{1e-4, 10}
+		case MethodPnPADMM, MethodPnPFISTA:
+			// σ of the denoiser, relative to the adjoint image's peak.
+			r.LambdaLook = []float64{1e-3, 0.3}
+		case MethodRED:
+			r.LambdaLook = []float64{1e-3, 10}
 		}
 	}
 	if r.LambdaLook != nil {

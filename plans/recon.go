@@ -23,6 +23,11 @@ type solver struct {
 	admm map[*encoding]*priors.ADMM
 	cgs  map[*encoding]*priors.CGSENSE
 	pf   map[*encoding]*priors.PartialFourier
+	pnpA map[*encoding]*priors.PnPADMM
+	pnpF map[*encoding]*priors.PnPFISTA
+	red  map[*encoding]*priors.RED
+	spin *priors.CycleSpin // cycle-spun wavelet prior, reset before each solve
+	den  priors.Denoiser
 }
 
 func (w *workerState) solverFor(ri int) (*solver, error) {
@@ -34,15 +39,29 @@ func (w *workerState) solverFor(ri int) (*solver, error) {
 	s := &solver{rc: rc, zf: make([]complex128, n), x: make([]complex128, n),
 		tik: map[*encoding]*priors.TikhonovSolver{}, tv: map[*encoding]*priors.TVSolver{},
 		tgv: map[*encoding]*priors.TGVSolver{}, admm: map[*encoding]*priors.ADMM{},
-		cgs: map[*encoding]*priors.CGSENSE{}, pf: map[*encoding]*priors.PartialFourier{}}
+		cgs: map[*encoding]*priors.CGSENSE{}, pf: map[*encoding]*priors.PartialFourier{},
+		pnpA: map[*encoding]*priors.PnPADMM{}, pnpF: map[*encoding]*priors.PnPFISTA{}, red: map[*encoding]*priors.RED{}}
 	switch rc.Method {
 	case MethodZeroFilled, MethodTikhonov, MethodTV, MethodTGV, MethodCGSENSE, MethodHomodyne, MethodPOCS:
+	case MethodPnPADMM, MethodPnPFISTA, MethodRED:
+		d, err := priors.NewDenoiser(rc.Denoiser, w.env.ny, w.env.nx)
+		if err != nil {
+			return nil, fmt.Errorf("recon %q: %w", rc.Label, err)
+		}
+		s.den = d
 	case MethodFISTAWavelet, MethodADMMWavelet:
 		p, err := priors.NewWaveletL1(w.env.ny, w.env.nx, rc.Levels, rc.Wavelet)
 		if err != nil {
 			return nil, fmt.Errorf("recon %q: %w", rc.Label, err)
 		}
 		s.prior = p
+		if rc.CycleSpinning {
+			seed := seedFor(w.env.plan.Seed, "cycle-spin|"+reconKey(rc))
+			if s.spin, err = priors.NewWaveletCycleSpin(p, seed, seed^0x9e3779b97f4a7c15); err != nil {
+				return nil, fmt.Errorf("recon %q: %w", rc.Label, err)
+			}
+			s.prior = s.spin
+		}
 	case MethodFISTABox:
 		b, err := odt.BoxProjection(rc.Box[0], rc.Box[1])
 		if err != nil {
@@ -76,12 +95,76 @@ func (w *workerState) reconstruct(ri int, enc *encoding, y []complex128, lambda 
 	case MethodZeroFilled:
 		return s.zf, 0, nil
 	case MethodFISTAWavelet:
-		x, info, err := priors.FISTA(enc.op, y, s.prior, priors.RelativeLambda(lambda, s.zf),
-			priors.FISTAOptions{MaxIter: s.rc.Iterations, Step: enc.step, X0: s.zf})
+		if s.spin != nil {
+			s.spin.Reset() // the same shifts for every solve, whatever ran before
+		}
+		opt := priors.FISTAOptions{MaxIter: s.rc.Iterations, Step: enc.step, X0: s.zf}
+		if s.rc.Restart != "" {
+			scheme, err := priors.ParseRestartScheme(s.rc.Restart)
+			if err != nil {
+				return nil, 0, err
+			}
+			x, info, err := priors.FISTARestart(enc.op, y, s.prior, priors.RelativeLambda(lambda, s.zf),
+				priors.FISTARestartOptions{FISTAOptions: opt, Scheme: scheme})
+			if err != nil {
+				return nil, 0, fmt.Errorf("recon %q: %w", s.rc.Label, err)
+			}
+			return x, info.Iterations, nil
+		}
+		x, info, err := priors.FISTA(enc.op, y, s.prior, priors.RelativeLambda(lambda, s.zf), opt)
 		if err != nil {
 			return nil, 0, fmt.Errorf("recon %q: %w", s.rc.Label, err)
 		}
 		return x, info.Iterations, nil
+	case MethodPnPADMM:
+		// Venkatakrishnan, Bouman, Wohlberg 2013: the denoiser in place of
+		// the proximal map; its strength σ is the tuned parameter.
+		ps, ok := s.pnpA[enc]
+		if !ok {
+			var err error
+			if ps, err = priors.NewPnPADMM(enc.op, s.den); err != nil {
+				return nil, 0, fmt.Errorf("recon %q: %w", s.rc.Label, err)
+			}
+			s.pnpA[enc] = ps
+		}
+		copy(s.x, s.zf)
+		rep, err := ps.Solve(s.x, y, priors.RelativeLambda(lambda, s.zf), priors.PnPADMMOptions{MaxIter: s.rc.Iterations, Tol: 1e-5})
+		if err != nil {
+			return nil, 0, fmt.Errorf("recon %q: %w", s.rc.Label, err)
+		}
+		return s.x, rep.Iterations, nil
+	case MethodPnPFISTA:
+		ps, ok := s.pnpF[enc]
+		if !ok {
+			var err error
+			if ps, err = priors.NewPnPFISTA(enc.op, s.den); err != nil {
+				return nil, 0, fmt.Errorf("recon %q: %w", s.rc.Label, err)
+			}
+			s.pnpF[enc] = ps
+		}
+		copy(s.x, s.zf)
+		rep, err := ps.Solve(s.x, y, priors.RelativeLambda(lambda, s.zf), priors.PnPFISTAOptions{MaxIter: s.rc.Iterations, Tol: 1e-5, Step: enc.step})
+		if err != nil {
+			return nil, 0, fmt.Errorf("recon %q: %w", s.rc.Label, err)
+		}
+		return s.x, rep.Iterations, nil
+	case MethodRED:
+		// Romano, Elad, Milanfar 2017: λ weighs the denoiser's residual; its
+		// strength is the noise level of the data.
+		rs, ok := s.red[enc]
+		if !ok {
+			var err error
+			if rs, err = priors.NewRED(enc.op, s.den); err != nil {
+				return nil, 0, fmt.Errorf("recon %q: %w", s.rc.Label, err)
+			}
+			s.red[enc] = rs
+		}
+		copy(s.x, s.zf)
+		rep, err := rs.Solve(s.x, y, lambda, w.env.out.Sigma, priors.REDOptions{MaxIter: s.rc.Iterations, Tol: 1e-5})
+		if err != nil {
+			return nil, 0, fmt.Errorf("recon %q: %w", s.rc.Label, err)
+		}
+		return s.x, rep.Iterations, nil
 	case MethodTikhonov:
 		// Tikhonov λ is dimensionless: both terms are squared intensities.
 		ts, ok := s.tik[enc]
