@@ -21,6 +21,9 @@ type encoding struct {
 	weights []float64    // nil for Cartesian masks
 	step    float64      // 1/L with L ≥ ‖EᴴE‖
 	mask    []bool       // the Cartesian mask, nil off the grid
+	// toeplitz is EᴴE of a single-coil non-Cartesian encoding by Toeplitz
+	// embedding, built when a plan's method solves normal equations.
+	toeplitz *nufft.Toeplitz
 }
 
 // cleanData holds the noiseless data of every candidate, each computed once
@@ -78,6 +81,11 @@ func (w *workerState) encodingFor(ci int) (*encoding, error) {
 			return nil, fmt.Errorf("candidate %s: %w", env.out.Candidates[ci].Key(), err)
 		}
 		e.op, e.weights = op, s.Weights
+		if usesNormalEquations(env.plan) {
+			if e.toeplitz, err = nufft.NewToeplitz(env.ny, env.nx, kx, ky, nil, nufft.Options{}); err != nil {
+				return nil, err
+			}
+		}
 		env.clean.once[ci].Do(func() {
 			// The exact spectrum of the analytic phantom at every
 			// trajectory point: no gridding of the truth is involved.
@@ -192,4 +200,16 @@ func (w *workerState) odtEncoding(ci int, e *encoding) error {
 		env.clean.data[ci], env.clean.err[ci] = odt.BornData(arcs, env.specimen)
 	})
 	return nil
+}
+
+// usesNormalEquations reports whether a plan has a method that solves the
+// normal equations by CG, which the Toeplitz embedding speeds up off the
+// grid.
+func usesNormalEquations(p *Plan) bool {
+	for _, r := range p.Recons {
+		if r.Method == MethodTikhonov {
+			return true
+		}
+	}
+	return false
 }
