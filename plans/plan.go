@@ -86,6 +86,8 @@ type Plan struct {
 	Schemes []Scheme   `toml:"scheme"`
 	Recons  []Recon    `toml:"recon"`
 	Accept  Acceptance `toml:"accept"`
+	// ROIs are the regions scored by metric roi-rmse.
+	ROIs []ROI `toml:"roi"`
 	// NoiseMaps asks for pseudo-replica noise maps of chosen points.
 	NoiseMaps []NoiseMapSpec `toml:"noise_map"`
 
@@ -268,7 +270,7 @@ var (
 	spokeOrders = []string{"golden", "tiny-golden", "uniform", "rational-golden"}
 	methods     = []string{MethodZeroFilled, MethodFISTAWavelet, MethodTikhonov, MethodTV, MethodTGV, MethodADMMWavelet, MethodCGSENSE, MethodHomodyne, MethodPOCS,
 		MethodPnPADMM, MethodPnPFISTA, MethodRED, MethodFISTABox}
-	metrics   = []string{MetricSSIM, MetricPSNR, MetricNRMSE, MetricSmallestDisc, MetricMTF50}
+	metrics   = []string{MetricSSIM, MetricPSNR, MetricNRMSE, MetricSmallestDisc, MetricMTF50, MetricROIRMSE}
 	phantoms  = []string{"modified-shepp-logan", PhantomLowContrast, PhantomResolution, PhantomImage, "modified-shepp-logan-3d"}
 	denoisers = []string{"tv", "wavelet", "wavelet-spin", "nlm"}
 	wavelets  = []string{"haar", "db2", "db3", "db4", "db5", "db6", "db7", "db8"}
@@ -699,6 +701,7 @@ func (v *validator) accept(p *Plan) {
 			"e.g. 0.9 for ssim, 30 for psnr (dB), 0.1 for nrmse, 4 for smallest-disc (mm), 0.5 for mtf50 (cycles/mm)")
 	}
 	v.taskMetric(p)
+	v.roiMetric(p)
 }
 
 func thresholdRange(metric string) (lo, hi float64) {
@@ -711,6 +714,8 @@ func thresholdRange(metric string) (lo, hi float64) {
 		return 0, 1000
 	case MetricMTF50:
 		return 0, 100
+	case MetricROIRMSE:
+		return 0, 10
 	}
 	return 0, 1
 }

@@ -34,7 +34,7 @@ func (r Row) Metric(name string) Summary {
 		return r.PSNR
 	case MetricNRMSE:
 		return r.NRMSE
-	case MetricSmallestDisc, MetricMTF50:
+	case MetricSmallestDisc, MetricMTF50, MetricROIRMSE:
 		return r.Task
 	}
 	return r.SSIM

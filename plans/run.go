@@ -71,14 +71,16 @@ func (r Result) Metric(name string) float64 {
 		return r.PSNR
 	case MetricNRMSE:
 		return r.NRMSE
-	case MetricSmallestDisc, MetricMTF50:
+	case MetricSmallestDisc, MetricMTF50, MetricROIRMSE:
 		return r.Task
 	}
 	return r.SSIM
 }
 
 // HigherIsBetter reports whether larger values of metric mean better images.
-func HigherIsBetter(metric string) bool { return metric != MetricNRMSE && metric != MetricSmallestDisc }
+func HigherIsBetter(metric string) bool {
+	return metric != MetricNRMSE && metric != MetricSmallestDisc && metric != MetricROIRMSE
+}
 
 // Tuning records how λ was fixed for one candidate and method.
 type Tuning struct {
@@ -481,7 +483,7 @@ type runEnv struct {
 	// The scene: what is imaged and how quality is measured.
 	dataRange float64 // L of PSNR and SSIM: max − min of the truth
 	// task scores the plan's task-based metric, nil when it has none.
-	task     func(img []float64, rows, cols int) (float64, error)
+	task     taskScorer
 	realPart bool // score the real part (an index contrast) instead of the magnitude
 	// MRI: the analytic phantom and its spectrum on the centred grid.
 	phantom  supportedPhantom
@@ -594,8 +596,9 @@ func (env *runEnv) setScene() error {
 // candidate and reused across its jobs.
 type workerState struct {
 	env          *runEnv
-	jobSeconds   float64 // time in jobs
-	reconSeconds float64 // time in reconstructions
+	task         taskScorer // the worker's own task scorer
+	jobSeconds   float64    // time in jobs
+	reconSeconds float64    // time in reconstructions
 	encs         map[int]*encoding
 	mag          []float64
 	ssim         *quality.SSIMPlan
@@ -607,7 +610,14 @@ func newWorkerState(env *runEnv) (*workerState, error) {
 	if err != nil {
 		return nil, err
 	}
-	return &workerState{env: env, encs: map[int]*encoding{},
+	var task taskScorer
+	if env.task != nil {
+		// Each worker gets its own scorer: some build masks on first use.
+		if _, t, err := taskPhantom(env.plan); err == nil && t != nil {
+			task = t
+		}
+	}
+	return &workerState{env: env, encs: map[int]*encoding{}, task: task,
 		mag: make([]float64, env.ny*env.nx), ssim: ssim, solvers: map[int]*solver{}}, nil
 }
 
@@ -747,7 +757,7 @@ func (w *workerState) score(mag []float64) (nrmse, psnr, ssim, task float64, err
 		return
 	}
 	if w.env.task != nil {
-		task, err = w.env.task(mag, w.env.ny, w.env.nx)
+		task, err = w.task(mag, o.Truth, w.env.ny, w.env.nx)
 	}
 	return
 }

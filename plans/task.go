@@ -22,6 +22,10 @@ import (
 const (
 	MetricSmallestDisc = "smallest-disc"
 	MetricMTF50        = "mtf50"
+	// MetricROIRMSE is the worst root-mean-square error against the truth
+	// over the plan's [[roi]] regions (image intensity units); lower is
+	// better.
+	MetricROIRMSE = "roi-rmse"
 
 	PhantomLowContrast = "low-contrast"
 	PhantomResolution  = "resolution"
@@ -29,7 +33,10 @@ const (
 
 // taskPhantom returns the phantom named by an MRI plan and, for the task
 // phantoms, the scorer of the task metric.
-func taskPhantom(p *Plan) (supportedPhantom, func(img []float64, rows, cols int) (float64, error), error) {
+// taskScorer scores one image against the truth for a task-based metric.
+type taskScorer func(img, truth []float64, rows, cols int) (float64, error)
+
+func taskPhantom(p *Plan) (supportedPhantom, taskScorer, error) {
 	fov := p.Object.FOVmm
 	switch p.Object.Phantom {
 	case PhantomLowContrast:
@@ -37,7 +44,7 @@ func taskPhantom(p *Plan) (supportedPhantom, func(img []float64, rows, cols int)
 		if err != nil {
 			return nil, nil, err
 		}
-		score := func(img []float64, rows, cols int) (float64, error) {
+		score := func(img, _ []float64, rows, cols int) (float64, error) {
 			g := quality.Grid{Nx: cols, Ny: rows, FOVmm: fov}
 			d, err := quality.DetectDiscs(img, g, ph.Targets, quality.DetectOptions{NoiseROI: ph.NoiseROI(cols, rows)})
 			if err != nil {
@@ -58,7 +65,7 @@ func taskPhantom(p *Plan) (supportedPhantom, func(img []float64, rows, cols int)
 		if err != nil {
 			return nil, nil, err
 		}
-		score := func(img []float64, rows, cols int) (float64, error) {
+		score := func(img, _ []float64, rows, cols int) (float64, error) {
 			g := quality.Grid{Nx: cols, Ny: rows, FOVmm: fov}
 			worst := math.Inf(1)
 			for _, e := range ph.Edges {
@@ -72,10 +79,72 @@ func taskPhantom(p *Plan) (supportedPhantom, func(img []float64, rows, cols int)
 		}
 		return ph, score, nil
 	}
+	var ph supportedPhantom = simulate.ModifiedSheppLogan()
 	if p.Object.Phantom == PhantomImage && p.image != nil {
-		return p.image, nil, nil
+		ph = p.image
 	}
-	return simulate.ModifiedSheppLogan(), nil, nil
+	if p.Accept.Metric == MetricROIRMSE {
+		return ph, roiScorer(p), nil
+	}
+	return ph, nil, nil
+}
+
+// ROI is a circular region of interest, centred at (x, y) in FOV units.
+type ROI struct {
+	Name     string  `toml:"name"`
+	X        float64 `toml:"x"`
+	Y        float64 `toml:"y"`
+	RadiusMM float64 `toml:"radius_mm"`
+}
+
+// roiScorer returns the worst RMSE against the truth over the plan's ROIs
+// (simulate/quality ROIStatistics). The masks are built on first use; the
+// scorer belongs to one worker.
+func roiScorer(p *Plan) taskScorer {
+	var rois []quality.ROI
+	return func(img, truth []float64, rows, cols int) (float64, error) {
+		if rois == nil {
+			g := quality.Grid{Nx: cols, Ny: rows, FOVmm: p.Object.FOVmm}
+			for _, r := range p.ROIs {
+				rois = append(rois, quality.ROI{Name: r.Name, Mask: g.CircleMask(r.X, r.Y, r.RadiusMM)})
+			}
+		}
+		st, err := quality.ROIStatistics(img, truth, rois)
+		if err != nil {
+			return 0, err
+		}
+		worst := 0.0
+		for _, r := range st {
+			worst = math.Max(worst, r.RMSE)
+		}
+		return worst, nil
+	}
+}
+
+// roiMetric validates the [[roi]] tables and their metric.
+func (v *validator) roiMetric(p *Plan) {
+	if p.Accept.Metric != MetricROIRMSE {
+		if len(p.ROIs) > 0 {
+			v.fail("roi", 0, "", "[[roi]] regions are scored by metric roi-rmse", "set accept.metric = \"roi-rmse\", or remove them")
+		}
+		return
+	}
+	if p.Is3D() || p.Modality == ModalityODT {
+		v.fail("accept", -1, "metric", "roi-rmse is available for 2D MRI plans", "choose ssim, psnr or nrmse")
+		return
+	}
+	if len(p.ROIs) == 0 {
+		v.fail("accept", -1, "metric", "roi-rmse needs at least one [[roi]] table", "add [[roi]] with name, x, y (FOV units) and radius_mm")
+	}
+	pix := p.Object.FOVmm / float64(max(p.Object.PhaseLines, p.Object.ReadoutPoints))
+	for i, r := range p.ROIs {
+		switch {
+		case !finite(r.X) || !finite(r.Y) || math.Abs(r.X) >= 0.5 || math.Abs(r.Y) >= 0.5:
+			v.fail("roi", i, "x", fmt.Sprintf("centre (%v, %v) is outside the field of view", r.X, r.Y), "x and y in FOV units, within (−0.5, 0.5)")
+		case !(r.RadiusMM >= pix) || r.RadiusMM > p.Object.FOVmm/2:
+			v.fail("roi", i, "radius_mm", fmt.Sprintf("must be between one pixel (%.2g mm) and half the FOV, got %v", pix, r.RadiusMM), "")
+		}
+	}
 }
 
 // taskMetric checks that a task metric fits the plan's phantom.
@@ -101,6 +170,7 @@ func (v *validator) taskMetric(p *Plan) {
 		if p.Object.Phantom != PhantomResolution {
 			v.fail("accept", -1, "metric", "mtf50 is defined for the resolution phantom", "set object.phantom = \"resolution\", or choose ssim, psnr or nrmse")
 		}
+	case MetricROIRMSE:
 	default:
 		if a.Contrast != 0 {
 			v.fail("accept", -1, "contrast", "applies to metric smallest-disc only", "remove it")

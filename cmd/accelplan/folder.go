@@ -426,13 +426,16 @@ func writeNoiseMaps(dir string, o *plans.Outcome) error {
 }
 
 func isTask(metric string) bool {
-	return metric == plans.MetricSmallestDisc || metric == plans.MetricMTF50
+	return metric == plans.MetricSmallestDisc || metric == plans.MetricMTF50 || metric == plans.MetricROIRMSE
 }
 
 // taskColumn names a task metric's column, with its unit.
 func taskColumn(metric string) string {
-	if metric == plans.MetricMTF50 {
+	switch metric {
+	case plans.MetricMTF50:
 		return "mtf50_per_mm"
+	case plans.MetricROIRMSE:
+		return "roi_rmse_worst"
 	}
 	return "smallest_disc_mm"
 }

@@ -42,6 +42,8 @@ func metricAxis(m string) string {
 		return "smallest disc detected (mm)"
 	case plans.MetricMTF50:
 		return "MTF50 (cycles/mm)"
+	case plans.MetricROIRMSE:
+		return "worst ROI RMSE"
 	}
 	return metricTitle(m)
 }
