@@ -16,8 +16,8 @@ import (
 // the block edges of the wavelet tiling never stay at the same pixels and
 // the blocky artefacts of a fixed decimated transform do not build up. This
 // is the per-iteration randomisation of cycle spinning (Coifman RR, Donoho
-// DL, "Translation-invariant de-noising", in Wavelets and Statistics,
-// Lecture Notes in Statistics 103, Springer 1995, pp. 125-150; drawing one
+// DL, "Translation-invariant de-noising", in Antoniadis A, Oppenheim G
+// (eds), Wavelets and Statistics, Springer 1995, pp. 125-150; drawing one
 // shift per iteration of an iterative reconstruction is common practice in
 // compressed-sensing MRI). P = 2^L for an L-level periodic wavelet
 // transform, which commutes with shifts by multiples of 2^L.

@@ -94,8 +94,8 @@ const WaveletDenoiserGain = 1.0
 // on the detail coefficients of an orthonormal periodic wavelet transform
 // (Donoho DL, IEEE Trans Inf Theory 1995;41:613-627), optionally averaged
 // over circular shifts — cycle spinning (Coifman RR, Donoho DL,
-// "Translation-invariant de-noising", in Wavelets and Statistics, Lecture
-// Notes in Statistics 103, Springer 1995, pp. 125-150): with spin period P it
+// "Translation-invariant de-noising", in Antoniadis A, Oppenheim G (eds),
+// Wavelets and Statistics, Springer 1995, pp. 125-150): with spin period P it
 // returns the mean over all shifts (a, b) ∈ [0, P)² of
 // S₋ₐ,₋ᵦ·shrink(Sₐ,ᵦ·src), where S shifts circularly by a rows and b columns.
 // Since the L-level periodic transform commutes with shifts by multiples of
