@@ -17,19 +17,12 @@ type solver struct {
 	x     []complex128 // result of the operator-bound solvers
 	wy    []complex128 // density-weighted data, grown as needed
 	prior priors.Prior
-	// Solvers built around one operator, per encoding (candidate).
-	tik  map[*encoding]*priors.TikhonovSolver
-	tv   map[*encoding]*priors.TVSolver
-	tgv  map[*encoding]*priors.TGVSolver
-	admm map[*encoding]*priors.ADMM
-	cgs  map[*encoding]*priors.CGSENSE
-	pf   map[*encoding]*priors.PartialFourier
-	pnpA map[*encoding]*priors.PnPADMM
-	pnpF map[*encoding]*priors.PnPFISTA
-	red  map[*encoding]*priors.RED
-	spin *priors.CycleSpin // cycle-spun wavelet prior, reset before each solve
-	toe  *toeplitzCG
-	den  priors.Denoiser
+	// byEnc holds the method's solver built around one operator, per
+	// encoding (candidate); see opSolver.
+	byEnc map[*encoding]any
+	spin  *priors.CycleSpin // cycle-spun wavelet prior, reset before each solve
+	toe   *toeplitzCG
+	den   priors.Denoiser
 }
 
 func (w *workerState) solverFor(ri int) (*solver, error) {
@@ -38,11 +31,7 @@ func (w *workerState) solverFor(ri int) (*solver, error) {
 	}
 	rc := w.env.plan.Recons[ri]
 	n := w.env.ny * w.env.nx
-	s := &solver{rc: rc, zf: make([]complex128, n), x: make([]complex128, n),
-		tik: map[*encoding]*priors.TikhonovSolver{}, tv: map[*encoding]*priors.TVSolver{},
-		tgv: map[*encoding]*priors.TGVSolver{}, admm: map[*encoding]*priors.ADMM{},
-		cgs: map[*encoding]*priors.CGSENSE{}, pf: map[*encoding]*priors.PartialFourier{},
-		pnpA: map[*encoding]*priors.PnPADMM{}, pnpF: map[*encoding]*priors.PnPFISTA{}, red: map[*encoding]*priors.RED{}}
+	s := &solver{rc: rc, zf: make([]complex128, n), x: make([]complex128, n), byEnc: map[*encoding]any{}}
 	switch rc.Method {
 	case MethodZeroFilled, MethodTikhonov, MethodTV, MethodTGV, MethodCGSENSE, MethodHomodyne, MethodPOCS:
 	case MethodPnPADMM, MethodPnPFISTA, MethodRED:
@@ -121,13 +110,9 @@ func (w *workerState) reconstruct(ri int, enc *encoding, y []complex128, lambda 
 	case MethodPnPADMM:
 		// Venkatakrishnan, Bouman, Wohlberg 2013: the denoiser in place of
 		// the proximal map; its strength σ is the tuned parameter.
-		ps, ok := s.pnpA[enc]
-		if !ok {
-			var err error
-			if ps, err = priors.NewPnPADMM(enc.op, s.den); err != nil {
-				return nil, 0, fmt.Errorf("recon %q: %w", s.rc.Label, err)
-			}
-			s.pnpA[enc] = ps
+		ps, err := opSolver(s, enc, func() (*priors.PnPADMM, error) { return priors.NewPnPADMM(enc.op, s.den) })
+		if err != nil {
+			return nil, 0, err
 		}
 		copy(s.x, s.zf)
 		rep, err := ps.Solve(s.x, y, priors.RelativeLambda(lambda, s.zf), priors.PnPADMMOptions{MaxIter: s.rc.Iterations, Tol: 1e-5})
@@ -136,13 +121,9 @@ func (w *workerState) reconstruct(ri int, enc *encoding, y []complex128, lambda 
 		}
 		return s.x, rep.Iterations, nil
 	case MethodPnPFISTA:
-		ps, ok := s.pnpF[enc]
-		if !ok {
-			var err error
-			if ps, err = priors.NewPnPFISTA(enc.op, s.den); err != nil {
-				return nil, 0, fmt.Errorf("recon %q: %w", s.rc.Label, err)
-			}
-			s.pnpF[enc] = ps
+		ps, err := opSolver(s, enc, func() (*priors.PnPFISTA, error) { return priors.NewPnPFISTA(enc.op, s.den) })
+		if err != nil {
+			return nil, 0, err
 		}
 		copy(s.x, s.zf)
 		rep, err := ps.Solve(s.x, y, priors.RelativeLambda(lambda, s.zf), priors.PnPFISTAOptions{MaxIter: s.rc.Iterations, Tol: 1e-5, Step: enc.step})
@@ -153,13 +134,9 @@ func (w *workerState) reconstruct(ri int, enc *encoding, y []complex128, lambda 
 	case MethodRED:
 		// Romano, Elad, Milanfar 2017: λ weighs the denoiser's residual; its
 		// strength is the noise level of the data.
-		rs, ok := s.red[enc]
-		if !ok {
-			var err error
-			if rs, err = priors.NewRED(enc.op, s.den); err != nil {
-				return nil, 0, fmt.Errorf("recon %q: %w", s.rc.Label, err)
-			}
-			s.red[enc] = rs
+		rs, err := opSolver(s, enc, func() (*priors.RED, error) { return priors.NewRED(enc.op, s.den) })
+		if err != nil {
+			return nil, 0, err
 		}
 		copy(s.x, s.zf)
 		rep, err := rs.Solve(s.x, y, lambda, w.env.out.Sigma, priors.REDOptions{MaxIter: s.rc.Iterations, Tol: 1e-5})
@@ -169,27 +146,22 @@ func (w *workerState) reconstruct(ri int, enc *encoding, y []complex128, lambda 
 		return s.x, rep.Iterations, nil
 	case MethodTikhonov:
 		// Tikhonov λ is dimensionless: both terms are squared intensities.
-		ts, ok := s.tik[enc]
-		if !ok {
-			kind, err := priors.ParseTikhonovKind(s.rc.Tikhonov)
-			if err != nil {
-				return nil, 0, err
-			}
-			reg, err := priors.NewTikhonov(kind, w.env.ny, w.env.nx, priors.BoundaryNeumann)
-			if err != nil {
-				return nil, 0, err
-			}
-			if ts, err = priors.NewTikhonovSolver(enc.op, reg, lambda); err != nil {
-				return nil, 0, fmt.Errorf("recon %q: %w", s.rc.Label, err)
-			}
-			s.tik[enc] = ts
-		}
 		if enc.toeplitz != nil {
 			// Off the grid, the normal operator EᴴE is one 2×-grid
 			// convolution (Toeplitz embedding, Fessler et al. 2005): CG on
 			// (EᴴE + λDᴴD)x = Eᴴy costs two FFTs per iteration instead of a
 			// NUFFT pair.
 			return w.tikhonovToeplitz(s, enc, y, lambda)
+		}
+		ts, err := opSolver(s, enc, func() (*priors.TikhonovSolver, error) {
+			reg, err := w.tikhonovReg(s.rc)
+			if err != nil {
+				return nil, err
+			}
+			return priors.NewTikhonovSolver(enc.op, reg, lambda)
+		})
+		if err != nil {
+			return nil, 0, err
 		}
 		if err := ts.SetLambda(lambda); err != nil {
 			return nil, 0, err
@@ -201,13 +173,11 @@ func (w *workerState) reconstruct(ri int, enc *encoding, y []complex128, lambda 
 		}
 		return s.x, rep.Iterations, nil
 	case MethodTV:
-		ts, ok := s.tv[enc]
-		if !ok {
-			var err error
-			if ts, err = priors.NewTVSolver(enc.op, w.env.ny, w.env.nx, priors.BoundaryNeumann); err != nil {
-				return nil, 0, fmt.Errorf("recon %q: %w", s.rc.Label, err)
-			}
-			s.tv[enc] = ts
+		ts, err := opSolver(s, enc, func() (*priors.TVSolver, error) {
+			return priors.NewTVSolver(enc.op, w.env.ny, w.env.nx, priors.BoundaryNeumann)
+		})
+		if err != nil {
+			return nil, 0, err
 		}
 		copy(s.x, s.zf)
 		rep, err := ts.Solve(s.x, y, priors.RelativeLambda(lambda, s.zf),
@@ -217,13 +187,11 @@ func (w *workerState) reconstruct(ri int, enc *encoding, y []complex128, lambda 
 		}
 		return s.x, rep.Iterations, nil
 	case MethodTGV:
-		ts, ok := s.tgv[enc]
-		if !ok {
-			var err error
-			if ts, err = priors.NewTGVSolver(enc.op, w.env.ny, w.env.nx, priors.BoundaryNeumann); err != nil {
-				return nil, 0, fmt.Errorf("recon %q: %w", s.rc.Label, err)
-			}
-			s.tgv[enc] = ts
+		ts, err := opSolver(s, enc, func() (*priors.TGVSolver, error) {
+			return priors.NewTGVSolver(enc.op, w.env.ny, w.env.nx, priors.BoundaryNeumann)
+		})
+		if err != nil {
+			return nil, 0, err
 		}
 		copy(s.x, s.zf)
 		a1 := priors.RelativeLambda(lambda, s.zf)
@@ -235,16 +203,15 @@ func (w *workerState) reconstruct(ri int, enc *encoding, y []complex128, lambda 
 	case MethodCGSENSE:
 		// CG on (EᴴE + λI)x = Eᴴy with the intensity-correction
 		// preconditioner (Pruessmann 2001); λ is dimensionless.
-		cs, ok := s.cgs[enc]
-		if !ok {
+		cs, err := opSolver(s, enc, func() (*priors.CGSENSE, error) {
 			d, err := priors.IntensityCorrection(w.env.maps)
 			if err != nil {
-				return nil, 0, err
+				return nil, err
 			}
-			if cs, err = priors.NewCGSENSE(enc.op, d); err != nil {
-				return nil, 0, fmt.Errorf("recon %q: %w", s.rc.Label, err)
-			}
-			s.cgs[enc] = cs
+			return priors.NewCGSENSE(enc.op, d)
+		})
+		if err != nil {
+			return nil, 0, err
 		}
 		clear(s.x)
 		rep, err := cs.Solve(s.x, y, lambda, priors.CGOptions{MaxIter: s.rc.Iterations, Tol: 1e-6})
@@ -253,16 +220,14 @@ func (w *workerState) reconstruct(ri int, enc *encoding, y []complex128, lambda 
 		}
 		return s.x, rep.Iterations, nil
 	case MethodHomodyne, MethodPOCS:
-		pf, ok := s.pf[enc]
-		if !ok {
-			if enc.mask == nil {
-				return nil, 0, fmt.Errorf("recon %q: partial Fourier needs a Cartesian mask", s.rc.Label)
-			}
-			var err error
-			if pf, err = priors.NewPartialFourier(w.env.ny, w.env.nx, enc.mask, priors.PartialFourierOptions{}); err != nil {
-				return nil, 0, fmt.Errorf("recon %q: %w", s.rc.Label, err)
-			}
-			s.pf[enc] = pf
+		if enc.mask == nil {
+			return nil, 0, fmt.Errorf("recon %q: partial Fourier needs a Cartesian mask", s.rc.Label)
+		}
+		pf, err := opSolver(s, enc, func() (*priors.PartialFourier, error) {
+			return priors.NewPartialFourier(w.env.ny, w.env.nx, enc.mask, priors.PartialFourierOptions{})
+		})
+		if err != nil {
+			return nil, 0, err
 		}
 		if s.rc.Method == MethodHomodyne {
 			if err := pf.Homodyne(s.x, y); err != nil {
@@ -276,13 +241,9 @@ func (w *workerState) reconstruct(ri int, enc *encoding, y []complex128, lambda 
 		}
 		return s.x, info.Iterations, nil
 	case MethodADMMWavelet:
-		as, ok := s.admm[enc]
-		if !ok {
-			var err error
-			if as, err = priors.NewADMM(enc.op, s.prior); err != nil {
-				return nil, 0, fmt.Errorf("recon %q: %w", s.rc.Label, err)
-			}
-			s.admm[enc] = as
+		as, err := opSolver(s, enc, func() (*priors.ADMM, error) { return priors.NewADMM(enc.op, s.prior) })
+		if err != nil {
+			return nil, 0, err
 		}
 		copy(s.x, s.zf)
 		opt := priors.DefaultADMMOptions()
@@ -355,11 +316,7 @@ func (n *normalEq) Apply(dst, src []complex128) {
 // encoding by CG with the Toeplitz normal operator.
 func (w *workerState) tikhonovToeplitz(s *solver, enc *encoding, y []complex128, lambda float64) ([]complex128, int, error) {
 	if s.toe == nil {
-		kind, err := priors.ParseTikhonovKind(s.rc.Tikhonov)
-		if err != nil {
-			return nil, 0, err
-		}
-		reg, err := priors.NewTikhonov(kind, w.env.ny, w.env.nx, priors.BoundaryNeumann)
+		reg, err := w.tikhonovReg(s.rc)
 		if err != nil {
 			return nil, 0, err
 		}
@@ -385,4 +342,29 @@ type toeplitzCG struct {
 	reg    *priors.Tikhonov
 	cg     *priors.CG
 	b, tmp []complex128
+}
+
+// opSolver returns the solver of type T that s keeps for encoding enc,
+// building it with build on first use. A method has one solver type, so one
+// map per method serves.
+func opSolver[T any](s *solver, enc *encoding, build func() (T, error)) (T, error) {
+	if v, ok := s.byEnc[enc]; ok {
+		return v.(T), nil
+	}
+	v, err := build()
+	if err != nil {
+		var zero T
+		return zero, fmt.Errorf("recon %q: %w", s.rc.Label, err)
+	}
+	s.byEnc[enc] = v
+	return v, nil
+}
+
+// tikhonovReg builds the regularising operator of a Tikhonov method.
+func (w *workerState) tikhonovReg(rc Recon) (*priors.Tikhonov, error) {
+	kind, err := priors.ParseTikhonovKind(rc.Tikhonov)
+	if err != nil {
+		return nil, err
+	}
+	return priors.NewTikhonov(kind, w.env.ny, w.env.nx, priors.BoundaryNeumann)
 }
