@@ -74,6 +74,9 @@ type CurveChart struct {
 	Caution string
 	// Bars chooses what the error bars show; the legend says which.
 	Bars ErrorBars
+	// Front draws the Pareto front across all curves: the points that no
+	// other point beats in both scan time and mean quality (ParetoFront).
+	Front bool
 }
 
 // Chart geometry and type sizes. The PNG is 1350×810 pixels.
@@ -588,6 +591,9 @@ func buildPlot(c CurveChart) *plot.Plot {
 		pt := c.Curves[c.Pick.Curve].Points[c.Pick.Point]
 		p.Add(pickGuide{x: pt.ScanTime, y: pt.Mean})
 	}
+	if c.Front {
+		p.Add(frontLine{pts: frontPoints(c)})
+	}
 	for i, cu := range c.Curves {
 		pts := curveData(cu, c.Bars)
 		if c.Bars != BarsNone {
@@ -738,4 +744,48 @@ func (r thickRing) DrawGlyph(c *draw.Canvas, sty draw.GlyphStyle, pt vg.Point) {
 	p.Arc(pt, sty.Radius, 0, 2*math.Pi)
 	p.Close()
 	c.Stroke(p)
+}
+
+// frontPoints returns the Pareto-front points of a chart in order of scan
+// time.
+func frontPoints(c CurveChart) []pointXY {
+	var times, means []float64
+	for _, cu := range c.Curves {
+		for _, q := range cu.Points {
+			times = append(times, q.ScanTime)
+			means = append(means, q.Mean)
+		}
+	}
+	on := ParetoFront(times, means, c.HigherIsBetter)
+	var pts []pointXY
+	for i, ok := range on {
+		if ok && !math.IsNaN(means[i]) && !math.IsInf(means[i], 0) {
+			pts = append(pts, pointXY{x: times[i], y: means[i]})
+		}
+	}
+	sort.Slice(pts, func(i, j int) bool { return pts[i].x < pts[j].x })
+	return pts
+}
+
+// frontStyle is the wide, pale band of the Pareto front, drawn under the
+// curves.
+var frontStyle = draw.LineStyle{Color: color.RGBA{R: 0xb8, G: 0xd4, B: 0xc0, A: 0xff}, Width: vg.Points(7)}
+
+// frontLine draws the Pareto front as a staircase: between two front points
+// the best quality available at that scan time is the earlier point's.
+type frontLine struct{ pts []pointXY }
+
+func (f frontLine) Plot(c draw.Canvas, p *plot.Plot) {
+	if len(f.pts) == 0 {
+		return
+	}
+	trX, trY := p.Transforms(&c)
+	var line []vg.Point
+	for i, q := range f.pts {
+		if i > 0 {
+			line = append(line, vg.Point{X: trX(q.x), Y: trY(f.pts[i-1].y)})
+		}
+		line = append(line, vg.Point{X: trX(q.x), Y: trY(q.y)})
+	}
+	c.StrokeLines(frontStyle, c.ClipLinesXY(line)...)
 }

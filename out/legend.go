@@ -57,6 +57,16 @@ func legendEntriesShowing(c CurveChart, shown int) []legendEntry {
 		first = false
 		es = append(es, e)
 	}
+	if c.Front {
+		add(legendEntry{
+			text: "Pareto front: no candidate is both faster and better",
+			thumb: func(dc draw.Canvas, mid vg.Point, k float64) {
+				st := frontStyle
+				st.Width = vg.Length(float64(st.Width) * min(k, 1))
+				dc.StrokeLine2(st, mid.X-legendThumbW/2, mid.Y, mid.X+legendThumbW/2, mid.Y)
+			},
+		})
+	}
 	if !math.IsNaN(c.Threshold) {
 		op := "≥"
 		side := "below"

@@ -222,7 +222,7 @@ func abs(x float64) float64 {
 func writeCurve(dir string, o *plans.Outcome, a *plans.Analysis, caution string) error {
 	p := o.Plan
 	chart := out.CurveChart{Title: p.Title, Metric: strings.ToUpper(a.Metric), Threshold: a.Threshold,
-		HigherIsBetter: plans.HigherIsBetter(a.Metric), Caution: strings.TrimPrefix(caution, "CAUTION: "), Bars: out.BarsBound}
+		HigherIsBetter: plans.HigherIsBetter(a.Metric), Caution: strings.TrimPrefix(caution, "CAUTION: "), Bars: out.BarsBound, Front: true}
 	for ci, cv := range a.Curves {
 		c := out.Curve{Name: p.Schemes[cv.Scheme].Label + " · " + p.Recons[cv.Recon].Label}
 		for pi, ri := range cv.Rows {

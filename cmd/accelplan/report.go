@@ -342,7 +342,7 @@ func reportCharts(o *plans.Outcome, a *plans.Analysis, caution string) ([]out.Re
 	for _, m := range order {
 		accept := m == a.Metric
 		chart := out.CurveChart{Title: p.Title, Metric: metricAxis(m), Threshold: math.NaN(),
-			HigherIsBetter: plans.HigherIsBetter(m), Bars: out.BarsBound}
+			HigherIsBetter: plans.HigherIsBetter(m), Bars: out.BarsBound, Front: true}
 		if accept {
 			chart.Threshold = a.Threshold
 			chart.Caution = strings.TrimPrefix(caution, "CAUTION: ")
