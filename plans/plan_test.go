@@ -279,3 +279,28 @@ func TestPartialFourierInSweep(t *testing.T) {
 		t.Errorf("POCS NRMSE %.4f not below zero-filled %.4f", pocs, zf)
 	}
 }
+
+// Every built-in plan parses, builds its candidates, and compares at least
+// two schemes or methods.
+func TestAllBuiltinPlans(t *testing.T) {
+	names := BuiltinNames()
+	if len(names) < 5 || names[0] != DefaultBuiltin {
+		t.Fatalf("built-in plans %v", names)
+	}
+	for _, n := range names {
+		p, err := LoadBuiltinNamed(n)
+		if err != nil {
+			t.Errorf("%s: %v", n, err)
+			continue
+		}
+		if _, err := Candidates(p); err != nil {
+			t.Errorf("%s: candidates: %v", n, err)
+		}
+		if len(p.Schemes)+len(p.Recons) < 3 {
+			t.Errorf("%s compares too little", n)
+		}
+	}
+	if _, err := LoadBuiltinNamed("no-such-plan"); err == nil || !strings.Contains(err.Error(), DefaultBuiltin) {
+		t.Errorf("an unknown built-in name should list the choices, got %v", err)
+	}
+}
