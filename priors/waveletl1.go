@@ -54,9 +54,7 @@ func (p *WaveletL1) Prox(dst, src []complex128, t float64) {
 	if t < 0 || math.IsNaN(t) {
 		panic(fmt.Sprintf("priors: WaveletL1.Prox with threshold %g", t))
 	}
-	p.w.Forward(p.coef, src)
-	SoftThresholdDetails(p.coef, p.w, t)
-	p.w.Inverse(dst, p.coef)
+	p.w.Shrink(dst, src, t)
 }
 
 // Value returns Σ |(W x)_i| over the detail coefficients.

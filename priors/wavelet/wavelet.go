@@ -7,7 +7,14 @@
 // Method: Mallat SG, "A theory for multiresolution signal decomposition: the
 // wavelet representation", IEEE Trans Pattern Anal Mach Intell
 // 1989;11:674-693 (the pyramid algorithm and the layout); Daubechies I, Ten
-// Lectures on Wavelets, SIAM 1992, §6.1 and Table 6.1 (the filters).
+// Lectures on Wavelets, SIAM 1992, §6.1 and Table 6.1 (the filters);
+// Daubechies I, Sweldens W, "Factoring wavelet transforms into lifting
+// steps", J Fourier Anal Appl 1998;4:247-269 (the lifting form that db1 …
+// db6 are computed in, lifting.go; db7 … db10 use the filters directly).
+//
+// Shrink fuses the transform, the complex soft threshold of the detail
+// coefficients and the inverse: the proximal map of the wavelet-sparsity
+// prior, the hot path of FISTA and ADMM.
 //
 // Because the filters are orthonormal and the signal is extended periodically,
 // the transform W is an orthogonal matrix: W^H W = I, ‖Wx‖ = ‖x‖, and the
@@ -41,6 +48,16 @@ type Transform struct {
 	anaLo, anaHi, synLo, synHi []float64
 	scratch                    []complex128 // ny×nx
 	srcs                       [][]float64  // the L source vectors of one output pair
+
+	// Lifting path (lift2d.go), used when lift is not nil: the 1D kernel,
+	// the transposed scratch tb (nx rows of stride ts ≥ ny) and the work
+	// array ub (ny rows of stride us ≥ nx), the subbands and their scales.
+	lift   *lifting
+	kern   kernel1D
+	tb, ub []complex128
+	ts, us int
+	bands  []Subband
+	scale  []float64
 }
 
 // Subband describes one block of the coefficient array.
@@ -138,19 +155,45 @@ func New(ny, nx, levels int, name string) (*Transform, error) {
 		t.synLo[2*j], t.synLo[2*j+1] = t.anaLo[2*(P-j)], t.anaHi[2*(P-j)]
 		t.synHi[2*j], t.synHi[2*j+1] = t.anaLo[2*(P-j)+1], t.anaHi[2*(P-j)+1]
 	}
+	if lf := liftingFor(fb); lf != nil && liftFits(lf, ny, nx, levels) {
+		t.lift = lf
+		t.bands = t.Subbands()
+		t.scale = bandScales(lf, t.bands, levels)
+		if k := pipelinedFor(lf); k != nil {
+			t.kern = k
+		} else {
+			t.kern = newStepKernel(lf, max(ny, nx))
+		}
+	}
 	t.alloc()
 	return t, nil
 }
 
+// liftFits reports whether the periodic margins of the lifting steps fit in
+// the shortest channel (half the coarsest block side) of the transform.
+func liftFits(lf *lifting, ny, nx, levels int) bool {
+	n := min(ny, nx) >> levels
+	return lf.margin[0] <= n && lf.margin[1] <= n
+}
+
 func (t *Transform) alloc() {
-	t.scratch = make([]complex128, t.ny*t.nx)
-	t.srcs = make([][]float64, t.fb.Len())
+	if t.lift == nil {
+		t.scratch = make([]complex128, t.ny*t.nx)
+		t.srcs = make([][]float64, t.fb.Len())
+		return
+	}
+	t.ts, t.us = t.ny+padComplex, t.nx+padComplex
+	t.tb = make([]complex128, t.nx*t.ts)
+	t.ub = make([]complex128, t.ny*t.us)
 }
 
 // Clone returns an independent plan for the same transform, with its own
 // scratch space, for use in another goroutine.
 func (t *Transform) Clone() *Transform {
 	c := *t
+	if t.kern != nil {
+		c.kern = t.kern.clone()
+	}
 	c.alloc()
 	return &c
 }
@@ -221,6 +264,11 @@ func floats(x []complex128) []float64 {
 // layout). dst and src may be the same slice; both must have length Len().
 func (t *Transform) Forward(dst, src []complex128) {
 	t.check(dst, src)
+	if t.lift != nil {
+		t.liftAnalyse(floats(src), 2*t.nx)
+		t.copyOut(dst)
+		return
+	}
 	if &dst[0] != &src[0] {
 		copy(dst, src)
 	}
@@ -237,6 +285,12 @@ func (t *Transform) Forward(dst, src []complex128) {
 // adjoint, and the inverse, of Forward. dst and src may be the same slice.
 func (t *Transform) Inverse(dst, src []complex128) {
 	t.check(dst, src)
+	if t.lift != nil {
+		t.copyIn(src)
+		t.liftSynthesise()
+		t.copyImage(dst)
+		return
+	}
 	if &dst[0] != &src[0] {
 		copy(dst, src)
 	}

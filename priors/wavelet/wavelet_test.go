@@ -26,6 +26,12 @@ type fixture struct {
 		Name           string
 		Re, Im         []float64
 	} `json:"transforms"`
+	Shrinks []struct {
+		Ny, Nx, Levels int
+		Name           string
+		Threshold      float64
+		Re, Im         []float64
+	} `json:"shrinks"`
 }
 
 func loadFixture(t *testing.T) fixture {
@@ -421,13 +427,23 @@ func TestInPlace(t *testing.T) {
 }
 
 func TestCloneIndependent(t *testing.T) {
-	tr, err := New(64, 64, 3, "db4")
+	for _, name := range []string{"db4", "db3", "db8"} { // pipelined, step-by-step and direct kernels
+		testCloneIndependent(t, name)
+	}
+}
+
+func testCloneIndependent(t *testing.T, name string) {
+	tr, err := New(128, 128, 3, name)
 	if err != nil {
 		t.Fatal(err)
 	}
 	c := tr.Clone()
-	if &c.scratch[0] == &tr.scratch[0] {
-		t.Fatal("clone shares scratch space")
+	shared := func(a, b []complex128) bool { return len(a) > 0 && &a[0] == &b[0] }
+	if shared(c.scratch, tr.scratch) || shared(c.tb, tr.tb) || shared(c.ub, tr.ub) {
+		t.Fatalf("%s: clone shares scratch space", name)
+	}
+	if sk, ok := tr.kern.(*stepKernel); ok && &sk.u[0][0] == &c.kern.(*stepKernel).u[0][0] {
+		t.Fatalf("%s: clone shares the kernel's row buffers", name)
 	}
 	x := randImage(tr.Len(), 3)
 	a := make([]complex128, len(x))

@@ -13,6 +13,12 @@ Contents:
   transforms   pywt.coeffs_to_array(pywt.wavedec2(x, name,
                mode='periodization', level=L)) of the real and imaginary
                parts of a test image x (the Mallat layout, same size as x)
+  shrinks      wavelet shrinkage of the test image: the detail
+               coefficients of wavedec2 (real and imaginary parts combined
+               into complex values) soft-thresholded by
+               pywt.threshold(c, thr, mode='soft'), which shrinks the
+               modulus of complex data, the approximation kept, and
+               pywt.waverec2 of the real and imaginary parts
 
 The test image is made from an integer linear congruential sequence so that
 the Go test rebuilds it bit for bit:
@@ -77,6 +83,34 @@ for ny, nx, level, name in cases:
         "ny": ny, "nx": nx, "levels": level, "name": name,
         "re": [float(v) for v in mallat(re, name, level).ravel()],
         "im": [float(v) for v in mallat(im, name, level).ravel()],
+    })
+
+out["shrinks"] = []
+for ny, nx, level, name, thr in [
+    (64, 64, 3, "db4", 0.15),
+    (56, 112, 3, "db4", 0.3),
+    (32, 48, 2, "db2", 0.1),
+    (48, 48, 2, "db5", 0.2),
+    (64, 64, 2, "db8", 0.15),
+]:
+    re, im = lcg_image(ny, nx)
+    cr = pywt.wavedec2(re, name, mode="periodization", level=level)
+    ci = pywt.wavedec2(im, name, mode="periodization", level=level)
+    sr, si = [cr[0]], [ci[0]]
+    for dr, di in zip(cr[1:], ci[1:]):
+        tr, ti = [], []
+        for a, b in zip(dr, di):
+            c = pywt.threshold(a + 1j * b, thr, mode="soft")
+            tr.append(c.real)
+            ti.append(c.imag)
+        sr.append(tuple(tr))
+        si.append(tuple(ti))
+    yr = pywt.waverec2(sr, name, mode="periodization")
+    yi = pywt.waverec2(si, name, mode="periodization")
+    out["shrinks"].append({
+        "ny": ny, "nx": nx, "levels": level, "name": name, "threshold": thr,
+        "re": [float(v) for v in yr.ravel()],
+        "im": [float(v) for v in yi.ravel()],
     })
 
 with open("wavelet_fixture.json", "w") as f:
