@@ -13,7 +13,7 @@ import (
 // complex modulus, so real and imaginary parts shrink together.
 //
 // Because W is orthonormal, the proximal map is exact and costs one forward
-// and one inverse transform: prox_{tR}(v) = W^H soft_t(W v), with the complex
+// and one inverse transform (fused in wavelet.Transform.Shrink): prox_{tR}(v) = W^H soft_t(W v), with the complex
 // soft threshold soft_t(c) = c·max(0, 1 − t/|c|) (Donoho DL, "De-noising by
 // soft-thresholding", IEEE Trans Inf Theory 1995;41:613-627; for the prox of
 // a norm composed with an orthogonal map see Combettes PL, Wajs VR, Multiscale

@@ -3,6 +3,7 @@ package wavelet_test
 import (
 	"fmt"
 	"math"
+	"math/rand/v2"
 
 	"accelplan/priors/wavelet"
 )
@@ -73,4 +74,40 @@ func ExampleNew_tooDeep() {
 	fmt.Println(err)
 	// Output:
 	// wavelet: 4 levels too deep for db4 (8 taps) on 64×64: at most 3 (each side must be ≥ 2^levels·7)
+}
+
+// Wavelet shrinkage of a noisy square: the soft threshold at the universal
+// threshold σ·√(2 ln n) (Donoho DL, Johnstone IM, Biometrika
+// 1994;81:425-455) removes a quarter of the error here; what is left sits at
+// the edges of the square, which a decimated transform smears.
+func ExampleTransform_Shrink() {
+	const n, sigma = 64, 0.05
+	w, err := wavelet.New(n, n, 3, "db4")
+	if err != nil {
+		panic(err)
+	}
+	rng := rand.New(rand.NewPCG(1, 2))
+	truth := make([]complex128, n*n)
+	noisy := make([]complex128, n*n)
+	for i := range n {
+		for j := range n {
+			if i >= 16 && i < 48 && j >= 16 && j < 48 {
+				truth[i*n+j] = 1
+			}
+			noisy[i*n+j] = truth[i*n+j] + complex(sigma*rng.NormFloat64(), sigma*rng.NormFloat64())
+		}
+	}
+	rms := func(x []complex128) float64 {
+		var s float64
+		for i, v := range x {
+			d := v - truth[i]
+			s += real(d)*real(d) + imag(d)*imag(d)
+		}
+		return math.Sqrt(s / float64(len(x)))
+	}
+	out := make([]complex128, n*n)
+	w.Shrink(out, noisy, sigma*math.Sqrt(2*math.Log(n*n)))
+	fmt.Printf("rms error: noisy %.3f, shrunk %.3f\n", rms(noisy), rms(out))
+	// Output:
+	// rms error: noisy 0.071, shrunk 0.053
 }

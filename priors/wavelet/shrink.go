@@ -13,7 +13,7 @@ func (t *Transform) Shrink(dst, src []complex128, thr float64) {
 	t.check(dst, src)
 	if t.lift == nil {
 		t.Forward(dst, src)
-		for _, b := range t.Subbands() {
+		for _, b := range t.bands {
 			if b.Kind == Approx {
 				continue
 			}
