@@ -8,7 +8,8 @@ import (
 
 // Lifting factorisation of the periodic two-channel filter bank
 // (Daubechies I, Sweldens W, "Factoring wavelet transforms into lifting
-// steps", J Fourier Anal Appl 1998;4:247-269).
+// steps", J Fourier Anal Appl 1998;4:247-269; volume and pages from
+// memory).
 //
 // Write the even and odd samples of a periodic signal x of length n as
 // x_e[i] = x[2i], x_o[i] = x[2i+1], and let S be the cyclic advance
