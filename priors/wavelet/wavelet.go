@@ -10,8 +10,8 @@
 // Lectures on Wavelets, SIAM 1992, §6.1 and Table 6.1 (the filters);
 // Daubechies I, Sweldens W, "Factoring wavelet transforms into lifting
 // steps", J Fourier Anal Appl 1998;4:247-269, volume and pages from memory
-// (the lifting form that db1 …
-// db6 are computed in, lifting.go; db7 … db10 use the filters directly).
+// (the lifting form that db1 … db6 are computed in, lifting.go; db7 … db10
+// use the filters directly).
 //
 // Shrink fuses the transform, the complex soft threshold of the detail
 // coefficients and the inverse: the proximal map of the wavelet-sparsity
