@@ -96,26 +96,10 @@ type FISTAInfo struct {
 // goroutine only.
 func FISTA(op simulate.Operator, y []complex128, prior Prior, lambda float64, opt FISTAOptions) ([]complex128, FISTAInfo, error) {
 	var info FISTAInfo
-	if op == nil {
-		return nil, info, errors.New("priors: FISTA needs an operator")
+	if err := checkFISTA(op, y, prior, lambda, opt); err != nil {
+		return nil, info, err
 	}
 	n, m := op.ImageLen(), op.DataLen()
-	switch {
-	case len(y) != m:
-		return nil, info, fmt.Errorf("priors: FISTA data has %d samples, the operator measures %d", len(y), m)
-	case math.IsNaN(lambda) || math.IsInf(lambda, 0) || lambda < 0:
-		return nil, info, fmt.Errorf("priors: FISTA λ = %g, want a finite value ≥ 0", lambda)
-	case lambda > 0 && prior == nil:
-		return nil, info, fmt.Errorf("priors: FISTA λ = %g needs a prior", lambda)
-	case opt.MaxIter < 0:
-		return nil, info, fmt.Errorf("priors: FISTA iteration cap %d is negative", opt.MaxIter)
-	case math.IsNaN(opt.Tol) || opt.Tol < 0:
-		return nil, info, fmt.Errorf("priors: FISTA tolerance %g, want ≥ 0", opt.Tol)
-	case math.IsNaN(opt.Step) || math.IsInf(opt.Step, 0) || opt.Step < 0:
-		return nil, info, fmt.Errorf("priors: FISTA step %g, want a finite value > 0 (or 0 to estimate it)", opt.Step)
-	case opt.X0 != nil && len(opt.X0) != n:
-		return nil, info, fmt.Errorf("priors: FISTA warm start has %d pixels, the operator images %d", len(opt.X0), n)
-	}
 	maxIter := opt.MaxIter
 	if maxIter == 0 {
 		maxIter = 100
@@ -126,13 +110,9 @@ func FISTA(op simulate.Operator, y []complex128, prior Prior, lambda float64, op
 	g := make([]complex128, n)
 	r := make([]complex128, m)
 
-	step := opt.Step
-	if step == 0 {
-		L := estimateNormSq(op, g, z, r, 100, 1e-7)
-		if !(L > 0) || math.IsInf(L, 0) {
-			return nil, info, fmt.Errorf("priors: FISTA cannot estimate ‖E‖² (got %g): is the operator zero?", L)
-		}
-		step = 1 / (1.01 * L)
+	step, err := fistaStep(op, opt.Step, g, z, r)
+	if err != nil {
+		return nil, info, err
 	}
 	info.Step = step
 	thr := lambda * step
@@ -263,4 +243,43 @@ func estimateNormSq(op simulate.Operator, u, v, r []complex128, maxIter int, tol
 		est = q
 	}
 	return est
+}
+
+// checkFISTA validates the arguments shared by FISTA and FISTARestart.
+func checkFISTA(op simulate.Operator, y []complex128, prior Prior, lambda float64, opt FISTAOptions) error {
+	if op == nil {
+		return errors.New("priors: FISTA needs an operator")
+	}
+	n, m := op.ImageLen(), op.DataLen()
+	switch {
+	case len(y) != m:
+		return fmt.Errorf("priors: FISTA data has %d samples, the operator measures %d", len(y), m)
+	case math.IsNaN(lambda) || math.IsInf(lambda, 0) || lambda < 0:
+		return fmt.Errorf("priors: FISTA λ = %g, want a finite value ≥ 0", lambda)
+	case lambda > 0 && prior == nil:
+		return fmt.Errorf("priors: FISTA λ = %g needs a prior", lambda)
+	case opt.MaxIter < 0:
+		return fmt.Errorf("priors: FISTA iteration cap %d is negative", opt.MaxIter)
+	case math.IsNaN(opt.Tol) || opt.Tol < 0:
+		return fmt.Errorf("priors: FISTA tolerance %g, want ≥ 0", opt.Tol)
+	case math.IsNaN(opt.Step) || math.IsInf(opt.Step, 0) || opt.Step < 0:
+		return fmt.Errorf("priors: FISTA step %g, want a finite value > 0 (or 0 to estimate it)", opt.Step)
+	case opt.X0 != nil && len(opt.X0) != n:
+		return fmt.Errorf("priors: FISTA warm start has %d pixels, the operator images %d", len(opt.X0), n)
+	}
+	return nil
+}
+
+// fistaStep returns the gradient step: the given one, or 1/(1.01·L) with L
+// the power-iteration estimate of ‖E‖², using g, z (image) and r (data) as
+// scratch.
+func fistaStep(op simulate.Operator, step float64, g, z, r []complex128) (float64, error) {
+	if step != 0 {
+		return step, nil
+	}
+	L := estimateNormSq(op, g, z, r, 100, 1e-7)
+	if !(L > 0) || math.IsInf(L, 0) {
+		return 0, fmt.Errorf("priors: FISTA cannot estimate ‖E‖² (got %g): is the operator zero?", L)
+	}
+	return 1 / (1.01 * L), nil
 }

@@ -1,7 +1,6 @@
 package priors
 
 import (
-	"errors"
 	"fmt"
 	"math"
 
@@ -93,32 +92,17 @@ type FISTARestartInfo struct {
 // and prior do not. The returned slice is new.
 func FISTARestart(op simulate.Operator, y []complex128, prior Prior, lambda float64, opt FISTARestartOptions) ([]complex128, FISTARestartInfo, error) {
 	var info FISTARestartInfo
-	if op == nil {
-		return nil, info, errors.New("priors: FISTA with restart needs an operator")
-	}
-	n, m := op.ImageLen(), op.DataLen()
 	o := opt.FISTAOptions
-	switch {
-	case len(y) != m:
-		return nil, info, fmt.Errorf("priors: FISTA data has %d samples, the operator measures %d", len(y), m)
-	case math.IsNaN(lambda) || math.IsInf(lambda, 0) || lambda < 0:
-		return nil, info, fmt.Errorf("priors: FISTA λ = %g, want a finite value ≥ 0", lambda)
-	case lambda > 0 && prior == nil:
-		return nil, info, fmt.Errorf("priors: FISTA λ = %g needs a prior", lambda)
-	case o.MaxIter < 0:
-		return nil, info, fmt.Errorf("priors: FISTA iteration cap %d is negative", o.MaxIter)
-	case math.IsNaN(o.Tol) || o.Tol < 0:
-		return nil, info, fmt.Errorf("priors: FISTA tolerance %g, want ≥ 0", o.Tol)
-	case math.IsNaN(o.Step) || math.IsInf(o.Step, 0) || o.Step < 0:
-		return nil, info, fmt.Errorf("priors: FISTA step %g, want a finite value > 0 (or 0 to estimate it)", o.Step)
-	case o.X0 != nil && len(o.X0) != n:
-		return nil, info, fmt.Errorf("priors: FISTA warm start has %d pixels, the operator images %d", len(o.X0), n)
-	case opt.Scheme != RestartGradient && opt.Scheme != RestartFunction && opt.Scheme != RestartNever:
+	if err := checkFISTA(op, y, prior, lambda, o); err != nil {
+		return nil, info, err
+	}
+	if opt.Scheme != RestartGradient && opt.Scheme != RestartFunction && opt.Scheme != RestartNever {
 		return nil, info, fmt.Errorf("priors: unknown FISTA restart scheme %d (valid: gradient, function, never)", int(opt.Scheme))
 	}
 	if prior != nil {
 		resetIfStateful(prior)
 	}
+	n, m := op.ImageLen(), op.DataLen()
 	maxIter := o.MaxIter
 	if maxIter == 0 {
 		maxIter = 100
@@ -129,13 +113,9 @@ func FISTARestart(op simulate.Operator, y []complex128, prior Prior, lambda floa
 	g := make([]complex128, n)
 	r := make([]complex128, m)
 
-	step := o.Step
-	if step == 0 {
-		L := estimateNormSq(op, g, z, r, 100, 1e-7)
-		if !(L > 0) || math.IsInf(L, 0) {
-			return nil, info, fmt.Errorf("priors: FISTA cannot estimate ‖E‖² (got %g): is the operator zero?", L)
-		}
-		step = 1 / (1.01 * L)
+	step, err := fistaStep(op, o.Step, g, z, r)
+	if err != nil {
+		return nil, info, err
 	}
 	info.Step = step
 	thr := lambda * step
