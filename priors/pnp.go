@@ -1,7 +1,6 @@
 package priors
 
 import (
-	"errors"
 	"fmt"
 	"math"
 
@@ -134,15 +133,9 @@ type PnPADMM struct {
 // NewPnPADMM returns a plug-and-play ADMM solver for operator op with
 // denoiser d.
 func NewPnPADMM(op simulate.Operator, d Denoiser) (*PnPADMM, error) {
-	if op == nil {
-		return nil, errors.New("priors: PnP-ADMM needs an encoding operator")
-	}
-	if d == nil {
-		return nil, errors.New("priors: PnP-ADMM needs a denoiser")
-	}
-	n, m := op.ImageLen(), op.DataLen()
-	if n < 1 || m < 1 {
-		return nil, fmt.Errorf("priors: PnP-ADMM operator maps %d pixels to %d samples", n, m)
+	n, m, err := checkDenoiserSolver("PnP-ADMM", op, d)
+	if err != nil {
+		return nil, err
 	}
 	cg, err := NewCG(n)
 	if err != nil {
@@ -340,15 +333,9 @@ type PnPFISTA struct {
 // NewPnPFISTA returns a plug-and-play FISTA solver for operator op with
 // denoiser d.
 func NewPnPFISTA(op simulate.Operator, d Denoiser) (*PnPFISTA, error) {
-	if op == nil {
-		return nil, errors.New("priors: PnP-FISTA needs an encoding operator")
-	}
-	if d == nil {
-		return nil, errors.New("priors: PnP-FISTA needs a denoiser")
-	}
-	n, m := op.ImageLen(), op.DataLen()
-	if n < 1 || m < 1 {
-		return nil, fmt.Errorf("priors: PnP-FISTA operator maps %d pixels to %d samples", n, m)
+	n, m, err := checkDenoiserSolver("PnP-FISTA", op, d)
+	if err != nil {
+		return nil, err
 	}
 	mk := func(k int) []complex128 { return make([]complex128, k) }
 	return &PnPFISTA{op: op, den: d, xp: mk(n), z: mk(n), g: mk(n), r: mk(m)}, nil
@@ -429,4 +416,20 @@ func (p *PnPFISTA) Solve(x, y []complex128, sigma float64, opt PnPFISTAOptions) 
 		}
 	}
 	return rep, nil
+}
+
+// checkDenoiserSolver validates the operator and denoiser of the
+// plug-and-play and RED solvers and returns the image and data lengths.
+func checkDenoiserSolver(name string, op simulate.Operator, d Denoiser) (n, m int, err error) {
+	if op == nil {
+		return 0, 0, fmt.Errorf("priors: %s needs an encoding operator", name)
+	}
+	if d == nil {
+		return 0, 0, fmt.Errorf("priors: %s needs a denoiser", name)
+	}
+	n, m = op.ImageLen(), op.DataLen()
+	if n < 1 || m < 1 {
+		return 0, 0, fmt.Errorf("priors: %s operator maps %d pixels to %d samples", name, n, m)
+	}
+	return n, m, nil
 }

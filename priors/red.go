@@ -1,7 +1,6 @@
 package priors
 
 import (
-	"errors"
 	"fmt"
 	"math"
 
@@ -102,15 +101,9 @@ type RED struct {
 
 // NewRED returns a RED solver for operator op with denoiser d.
 func NewRED(op simulate.Operator, d Denoiser) (*RED, error) {
-	if op == nil {
-		return nil, errors.New("priors: RED needs an encoding operator")
-	}
-	if d == nil {
-		return nil, errors.New("priors: RED needs a denoiser")
-	}
-	n, m := op.ImageLen(), op.DataLen()
-	if n < 1 || m < 1 {
-		return nil, fmt.Errorf("priors: RED operator maps %d pixels to %d samples", n, m)
+	n, m, err := checkDenoiserSolver("RED", op, d)
+	if err != nil {
+		return nil, err
 	}
 	cg, err := NewCG(n)
 	if err != nil {
