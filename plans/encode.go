@@ -71,11 +71,7 @@ func (w *workerState) encodingFor(ci int) (*encoding, error) {
 			env.clean.data[ci] = d
 		})
 	} else {
-		kx := make([]float64, len(s.K))
-		ky := make([]float64, len(s.K))
-		for j, k := range s.K {
-			kx[j], ky[j] = k[0], k[1]
-		}
+		kx, ky := splitK(s.K)
 		op, err := nufft.New(env.ny, env.nx, kx, ky, nufft.Options{})
 		if err != nil {
 			return nil, fmt.Errorf("candidate %s: %w", env.out.Candidates[ci].Key(), err)
@@ -142,11 +138,7 @@ func (w *workerState) senseEncoding(ci int, e *encoding) error {
 			env.clean.data[ci], env.clean.err[ci] = env.coils.CartesianData(env.phantom, env.ny, env.nx, s.Mask)
 		})
 	} else {
-		kx := make([]float64, len(s.K))
-		ky := make([]float64, len(s.K))
-		for j, k := range s.K {
-			kx[j], ky[j] = k[0], k[1]
-		}
+		kx, ky := splitK(s.K)
 		op, err := simulate.NewNUFFTSENSE(env.ny, env.nx, kx, ky, nufft.Options{}, env.maps, env.coilNoise)
 		if err != nil {
 			return fmt.Errorf("candidate %s: %w", env.out.Candidates[ci].Key(), err)

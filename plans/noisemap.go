@@ -129,15 +129,8 @@ func (w *workerState) replicaStd(ctx context.Context, enc *encoding, key string,
 		seed := seedFor(w.env.plan.Seed, fmt.Sprintf("replica|%s|%d", key, r))
 		rng := rand.New(rand.NewPCG(seed, seed^0x5851f42d4c957f2d))
 		copy(y, enc.clean)
-		if nc := w.env.coilNoise; nc != nil {
-			if err := nc.AddNoise(y, w.env.out.Sigma, rng); err != nil {
-				return nil, nil, err
-			}
-			if err := nc.Whiten(y); err != nil {
-				return nil, nil, err
-			}
-		} else {
-			simulate.AddNoise(y, w.env.out.Sigma, rng)
+		if err := w.addNoise(y, rng); err != nil {
+			return nil, nil, err
 		}
 		img, _, err := w.reconstruct(ri, enc, y, lambda)
 		if err != nil {

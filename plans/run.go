@@ -220,11 +220,7 @@ func (c *Candidate) psf(ny, nx int) error {
 		c.SideLobe, err = trajectories.SideLobeToPeak(c.PSF, ny, nx)
 		return err
 	}
-	kx := make([]float64, len(s.K))
-	ky := make([]float64, len(s.K))
-	for j, k := range s.K {
-		kx[j], ky[j] = k[0], k[1]
-	}
+	kx, ky := splitK(s.K)
 	op, err := nufft.New(ny, nx, kx, ky, nufft.Options{})
 	if err != nil {
 		return err
@@ -622,6 +618,31 @@ func newWorkerState(env *runEnv) (*workerState, error) {
 }
 
 // draw returns the candidate's encoding and noisy data for the given draw key.
+// addNoise adds the run's measurement noise to data y: white Gaussian noise
+// of σ per channel, or with a receive array coil noise of covariance 2σ²Ψ
+// after which the data (signal and noise alike) are whitened as the
+// operator is.
+func (w *workerState) addNoise(y []complex128, rng *rand.Rand) error {
+	nc := w.env.coilNoise
+	if nc == nil {
+		simulate.AddNoise(y, w.env.out.Sigma, rng)
+		return nil
+	}
+	if err := nc.AddNoise(y, w.env.out.Sigma, rng); err != nil {
+		return err
+	}
+	return nc.Whiten(y)
+}
+
+// splitK returns the kx and ky coordinates of k-space points.
+func splitK(k [][2]float64) (kx, ky []float64) {
+	kx, ky = make([]float64, len(k)), make([]float64, len(k))
+	for j, p := range k {
+		kx[j], ky[j] = p[0], p[1]
+	}
+	return kx, ky
+}
+
 func (w *workerState) draw(ci int, key string) (*encoding, []complex128, uint64, error) {
 	e, err := w.encodingFor(ci)
 	if err != nil {
@@ -631,17 +652,8 @@ func (w *workerState) draw(ci int, key string) (*encoding, []complex128, uint64,
 	rng := rand.New(rand.NewPCG(seed, seed^0x5851f42d4c957f2d))
 	y := make([]complex128, len(e.clean))
 	copy(y, e.clean)
-	if nc := w.env.coilNoise; nc != nil {
-		// Coil noise of covariance 2σ²Ψ, then the data (signal and noise
-		// alike) whitened as the operator is.
-		if err := nc.AddNoise(y, w.env.out.Sigma, rng); err != nil {
-			return nil, nil, 0, err
-		}
-		if err := nc.Whiten(y); err != nil {
-			return nil, nil, 0, err
-		}
-	} else {
-		simulate.AddNoise(y, w.env.out.Sigma, rng)
+	if err := w.addNoise(y, rng); err != nil {
+		return nil, nil, 0, err
 	}
 	return e, y, seed, nil
 }

@@ -5,6 +5,7 @@ import (
 	"math"
 	"math/rand/v2"
 
+	"accelplan/priors"
 	"accelplan/simulate/nufft"
 	"reflect"
 	"strings"
@@ -201,7 +202,7 @@ func TestUniversalRule(t *testing.T) {
 	enc.op.Adjoint(zf, y)
 	n := float64(p.Object.PhaseLines * p.Object.ReadoutPoints)
 	want := w.env.out.Sigma * math.Sqrt(2*math.Log(n))
-	if got := rel * maxAbsTest(zf); math.Abs(got/want-1) > 1e-12 {
+	if got := rel * priors.MaxAbs(zf); math.Abs(got/want-1) > 1e-12 {
 		t.Errorf("absolute threshold %v, want σ√(2 ln n) = %v", got, want)
 	}
 }
@@ -219,14 +220,6 @@ func TestOracleIsLabelled(t *testing.T) {
 	if _, err := Parse("t.toml", []byte(bad)); err == nil || !strings.Contains(err.Error(), "lambda") {
 		t.Errorf("universal threshold on zero-filled accepted: %v", err)
 	}
-}
-
-func maxAbsTest(x []complex128) float64 {
-	m := 0.0
-	for _, v := range x {
-		m = math.Max(m, math.Hypot(real(v), imag(v)))
-	}
-	return m
 }
 
 // Off the grid, Tikhonov by CG runs on the Toeplitz embedding of EᴴE
@@ -264,10 +257,7 @@ threshold = 0.5
 		t.Fatal("no Toeplitz operator for a non-Cartesian Tikhonov plan")
 	}
 	smp := w.env.out.Candidates[0].Sampling
-	kx, ky := make([]float64, len(smp.K)), make([]float64, len(smp.K))
-	for j, k := range smp.K {
-		kx[j], ky[j] = k[0], k[1]
-	}
+	kx, ky := splitK(smp.K)
 	exact, err := nufft.New(48, 48, kx, ky, nufft.Options{Width: 8})
 	if err != nil {
 		t.Fatal(err)
