@@ -178,6 +178,9 @@ func (env *runEnv) scene3D() error {
 	p, o := env.plan, env.out
 	nz, ny := p.PlaneSize()
 	ph := simulate.ModifiedSheppLogan3D()
+	// Built afresh, so that a scene set up again for an outcome (noise
+	// maps, estimates) does not stack the planes twice.
+	env.cuts, env.cutSpectra, o.Truth, o.Support = nil, nil, nil, nil
 	for _, x := range p.Object.ReadoutPositions {
 		cut := ph.SliceX(x)
 		if len(cut) == 0 {

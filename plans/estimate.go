@@ -36,13 +36,7 @@ func EstimatePlan(ctx context.Context, p *Plan, workers int) (*Estimate, error) 
 	if workers < 1 {
 		workers = 1
 	}
-	ny, nx := p.ImageSize()
-	o := &Outcome{Plan: p, Candidates: cands}
-	env := &runEnv{plan: p, out: o, clean: newCleanData(len(cands)), ny: ny, nx: nx}
-	if err := env.setScene(); err != nil {
-		return nil, err
-	}
-	w, err := newWorkerState(env)
+	w, err := soloWorker(&Outcome{Plan: p, Candidates: cands})
 	if err != nil {
 		return nil, err
 	}

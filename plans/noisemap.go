@@ -80,12 +80,7 @@ func NoiseMaps(ctx context.Context, o *Outcome) ([]NoiseMap, error) {
 	if len(p.NoiseMaps) == 0 {
 		return nil, nil
 	}
-	ny, nx := p.ImageSize()
-	env := &runEnv{plan: p, out: o, clean: newCleanData(len(o.Candidates)), ny: ny, nx: nx}
-	if err := env.setScene(); err != nil {
-		return nil, err
-	}
-	w, err := newWorkerState(env)
+	w, err := soloWorker(o)
 	if err != nil {
 		return nil, err
 	}

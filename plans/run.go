@@ -618,6 +618,18 @@ func newWorkerState(env *runEnv) (*workerState, error) {
 }
 
 // draw returns the candidate's encoding and noisy data for the given draw key.
+// soloWorker sets up the scene of outcome o and one worker outside a sweep
+// (pre-flight estimates, noise maps, tests).
+func soloWorker(o *Outcome) (*workerState, error) {
+	p := o.Plan
+	ny, nx := p.ImageSize()
+	env := &runEnv{plan: p, out: o, clean: newCleanData(len(o.Candidates)), ny: ny, nx: nx}
+	if err := env.setScene(); err != nil {
+		return nil, err
+	}
+	return newWorkerState(env)
+}
+
 // addNoise adds the run's measurement noise to data y: white Gaussian noise
 // of σ per channel, or with a receive array coil noise of covariance 2σ²Ψ
 // after which the data (signal and noise alike) are whitened as the

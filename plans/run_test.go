@@ -146,12 +146,7 @@ func newTestWorker(t *testing.T, text string) (*workerState, *Plan) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	o := &Outcome{Plan: p, Candidates: cands}
-	env := &runEnv{plan: p, out: o, clean: newCleanData(len(cands)), ny: p.Object.PhaseLines, nx: p.Object.ReadoutPoints}
-	if err := env.setScene(); err != nil {
-		t.Fatal(err)
-	}
-	w, err := newWorkerState(env)
+	w, err := soloWorker(&Outcome{Plan: p, Candidates: cands})
 	if err != nil {
 		t.Fatal(err)
 	}
