@@ -34,6 +34,7 @@ type Plan2D struct {
 	rows, cols *tables
 	rowA, rowB []complex128 // row scratch, nx each
 	blkA, blkB []complex128 // column blocks, ny·block each
+	blkC       []complex128 // a third column block for CentredColumnFilter, made on its first call
 	rowWk      work
 	colWk      work
 	block      int // columns per block, see columnBlock
