@@ -27,6 +27,17 @@ type Operator interface {
 	DataLen() int
 }
 
+// NormalOperator is an Operator that applies its normal operator EᴴE to an
+// image directly, in less work than Forward followed by Adjoint (for a
+// Cartesian mask of whole phase-encode rows the readout transforms cancel).
+// Solvers that need only EᴴE and Eᴴy (gradient steps, conjugate gradients on
+// the normal equations) use it when the operator offers it. As with the
+// other methods, dst and src never alias.
+type NormalOperator interface {
+	Operator
+	Normal(dst, src []complex128) // image -> image, EᴴE·src
+}
+
 // Phantom is an object known in closed form, so that measured data are drawn
 // from its exact spectrum and never from the FFT of the grid that is
 // reconstructed on (which would commit the inverse crime).
