@@ -123,8 +123,7 @@ type admmNormal struct{ a *ADMM }
 func (h admmNormal) Len() int { return h.a.op.ImageLen() }
 func (h admmNormal) Apply(dst, src []complex128) {
 	a := h.a
-	a.op.Forward(a.data, src)
-	a.op.Adjoint(dst, a.data)
+	applyNormal(a.op, dst, src, a.data)
 	r := complex(a.rho, 0)
 	for i, v := range src {
 		dst[i] += r * v

@@ -64,6 +64,19 @@ func BenchmarkCartesianForwardAdjoint256(b *testing.B) {
 	done()
 }
 
+// … or EᴴE at once, which for this mask of whole rows needs only the column
+// transforms (simulate.Cartesian.Normal) …
+func BenchmarkCartesianNormal256(b *testing.B) {
+	op, _, _ := benchProblem(b)
+	x := randVec(op.ImageLen(), 4)
+	g := make([]complex128, op.ImageLen())
+	done := cpuTimer(b)
+	for b.Loop() {
+		op.Normal(g, x)
+	}
+	done()
+}
+
 // … and the wavelet prox (forward transform, threshold, inverse).
 func BenchmarkWaveletL1Prox256Db4(b *testing.B) {
 	_, _, prior := benchProblem(b)

@@ -125,16 +125,10 @@ func FISTA(op simulate.Operator, y []complex128, prior Prior, lambda float64, op
 	copy(z, xPrev)
 	copy(x, xPrev) // returned as is when maxIter iterations are zero
 	t := 1.0
+	grad := newGradStep(op, r)
+	grad.setData(y)
 	for k := 1; k <= maxIter; k++ {
-		// g = z − step·E^H(E z − y)
-		op.Forward(r, z)
-		for i := range r {
-			r[i] -= y[i]
-		}
-		op.Adjoint(g, r)
-		for i := range g {
-			g[i] = z[i] - complex(step*real(g[i]), step*imag(g[i]))
-		}
+		grad.apply(g, z, step) // g = z − step·E^H(E z − y)
 		if prior != nil && lambda > 0 {
 			prior.Prox(x, g, thr)
 		} else {

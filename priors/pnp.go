@@ -157,8 +157,7 @@ type pnpNormal struct {
 
 func (h *pnpNormal) Len() int { return h.op.ImageLen() }
 func (h *pnpNormal) Apply(dst, src []complex128) {
-	h.op.Forward(h.data, src)
-	h.op.Adjoint(dst, h.data)
+	applyNormal(h.op, dst, src, h.data)
 	for i, v := range src {
 		dst[i] += complex(h.rho*real(v), h.rho*imag(v))
 	}
@@ -328,6 +327,7 @@ type PnPFISTA struct {
 
 	xp, z, g []complex128
 	r        []complex128
+	grad     *gradStep
 }
 
 // NewPnPFISTA returns a plug-and-play FISTA solver for operator op with
@@ -338,7 +338,8 @@ func NewPnPFISTA(op simulate.Operator, d Denoiser) (*PnPFISTA, error) {
 		return nil, err
 	}
 	mk := func(k int) []complex128 { return make([]complex128, k) }
-	return &PnPFISTA{op: op, den: d, xp: mk(n), z: mk(n), g: mk(n), r: mk(m)}, nil
+	r := mk(m)
+	return &PnPFISTA{op: op, den: d, xp: mk(n), z: mk(n), g: mk(n), r: r, grad: newGradStep(op, r)}, nil
 }
 
 // Solve writes the reconstruction into x, starting from the guess in x. y
@@ -380,15 +381,9 @@ func (p *PnPFISTA) Solve(x, y []complex128, sigma float64, opt PnPFISTAOptions) 
 	copy(p.z, x)
 	t := 1.0
 	rep := PnPReport{Sigma: sigma}
+	p.grad.setData(y)
 	for k := 1; k <= maxIter; k++ {
-		p.op.Forward(p.r, p.z)
-		for i := range p.r {
-			p.r[i] -= y[i]
-		}
-		p.op.Adjoint(p.g, p.r)
-		for i, v := range p.g {
-			p.g[i] = p.z[i] - complex(step*real(v), step*imag(v))
-		}
+		p.grad.apply(p.g, p.z, step) // g = z − step·Eᴴ(E z − y)
 		p.den.Denoise(x, p.g, sigma)
 		beta := 0.0
 		if !opt.NoMomentum {

@@ -133,16 +133,11 @@ func FISTARestart(op simulate.Operator, y []complex128, prior Prior, lambda floa
 		fPrev = objective(op, y, prior, lambda, xPrev, r)
 	}
 	t := 1.0
+	grad := newGradStep(op, r)
+	grad.setData(y)
 	for k := 1; k <= maxIter; k++ {
 		// x = prox(g), g = z − step·E^H(E z − y)
-		op.Forward(r, z)
-		for i := range r {
-			r[i] -= y[i]
-		}
-		op.Adjoint(g, r)
-		for i := range g {
-			g[i] = z[i] - complex(step*real(g[i]), step*imag(g[i]))
-		}
+		grad.apply(g, z, step)
 		if usePrior {
 			prior.Prox(x, g, thr)
 		} else {

@@ -102,8 +102,7 @@ func (s *CGSENSE) Apply(dst, src []complex128) {
 		}
 		in = s.tmp
 	}
-	s.op.Forward(s.data, in)
-	s.op.Adjoint(dst, s.data)
+	applyNormal(s.op, dst, in, s.data)
 	if s.lambda != 0 {
 		l := complex(s.lambda, 0)
 		for i, v := range in {

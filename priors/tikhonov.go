@@ -217,8 +217,7 @@ func (s *TikhonovSolver) Len() int { return s.op.ImageLen() }
 
 // Apply writes (EᴴE + λ DᴴD)·src into dst, the normal operator.
 func (s *TikhonovSolver) Apply(dst, src []complex128) {
-	s.op.Forward(s.data, src)
-	s.op.Adjoint(dst, s.data)
+	applyNormal(s.op, dst, src, s.data)
 	if s.lambda == 0 {
 		return
 	}
