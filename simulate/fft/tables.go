@@ -382,11 +382,11 @@ func run(st *stage, y, x []complex128, tw []float64, g *geom, wk *work) {
 			r8(y, x, tw, g)
 		}
 	case 4:
-		r4notw(y, x, g, 1)
 		if g.s == 1 && g.xstep == 1 {
+			r4notw(y, x, g, 1)
 			r4s1(y, x, tw, g)
 		} else {
-			r4(y, x, tw, g)
+			r4Pass(y, x, tw, g)
 		}
 	case 2:
 		r2notw(y, x, g, 1)
@@ -410,7 +410,7 @@ func runLast(st *stage, y, x []complex128, g *geom, scale float64, wk *work) {
 			r8notw(y, x, g, g.m)
 			return
 		case 4:
-			r4notw(y, x, g, g.m)
+			r4LastPass(y, x, g, 1)
 			return
 		case 2:
 			r2notw(y, x, g, g.m)
@@ -427,7 +427,7 @@ func runLast(st *stage, y, x []complex128, g *geom, scale float64, wk *work) {
 	case 8:
 		r8last(y, x, g, scale)
 	case 4:
-		r4last(y, x, g, scale)
+		r4LastPass(y, x, g, scale)
 	case 2:
 		r2last(y, x, g, scale)
 	case 3:

@@ -1,0 +1,81 @@
+//go:build amd64
+
+package fft
+
+import "golang.org/x/sys/cpu"
+
+// haveSIMD reports whether the CPU runs the AVX2+FMA kernels of
+// simd_amd64.s.
+var haveSIMD = cpu.X86.HasAVX2 && cpu.X86.HasFMA
+
+// The assembly kernels below each run the inner q-loop of one radix-4
+// butterfly group (see kernels.go) over n contiguous complex128 values, two
+// per 256-bit register; n must be even and at least 2. y0..y3 are the output
+// runs, x0..x3 the input runs. The butterfly is the textbook radix-4
+// decimation-in-frequency one (Cooley & Tukey, Math. Comp. 19, 1965, in the
+// self-sorting order of Stockham, as in Van Loan, Computational Frameworks
+// for the Fast Fourier Transform, SIAM 1992, §1.7). Like the Go last-pass
+// kernels, each kernel reads all four inputs of a position before storing
+// its outputs, so the output runs may coincide with the input runs.
+
+// r4notwAVX2 writes the twiddle-free butterfly of x0..x3 to y0..y3.
+//
+//go:noescape
+func r4notwAVX2(y0, y1, y2, y3, x0, x1, x2, x3 *complex128, n int)
+
+// r4twAVX2 writes the butterfly of x0..x3 to y0..y3, output i ≥ 1 times the
+// twiddle (w[2i-2], w[2i-1]), multiplied with VFMADDSUB231PD.
+//
+//go:noescape
+func r4twAVX2(y0, y1, y2, y3, x0, x1, x2, x3 *complex128, n int, w *[6]float64)
+
+// r4scaleAVX2 writes the twiddle-free butterfly of x0..x3 times scale to
+// y0..y3.
+//
+//go:noescape
+func r4scaleAVX2(y0, y1, y2, y3, x0, x1, x2, x3 *complex128, n int, scale float64)
+
+// r4PassSIMD is r4notw for group 0 and r4 for the others with the AVX2
+// kernels; g.s must be even.
+func r4PassSIMD(y, x []complex128, tw []float64, g *geom) {
+	s := g.s
+	for p := range g.m {
+		xb, yb := p*g.xstep, p*g.ystep
+		x0 := x[xb+g.xo[0] : xb+g.xo[0]+s]
+		x1 := x[xb+g.xo[1] : xb+g.xo[1]+s]
+		x2 := x[xb+g.xo[2] : xb+g.xo[2]+s]
+		x3 := x[xb+g.xo[3] : xb+g.xo[3]+s]
+		y0 := y[yb+g.yo[0] : yb+g.yo[0]+s]
+		y1 := y[yb+g.yo[1] : yb+g.yo[1]+s]
+		y2 := y[yb+g.yo[2] : yb+g.yo[2]+s]
+		y3 := y[yb+g.yo[3] : yb+g.yo[3]+s]
+		if p == 0 {
+			r4notwAVX2(&y0[0], &y1[0], &y2[0], &y3[0], &x0[0], &x1[0], &x2[0], &x3[0], s)
+			continue
+		}
+		w := (*[6]float64)(tw[6*p : 6*p+6])
+		r4twAVX2(&y0[0], &y1[0], &y2[0], &y3[0], &x0[0], &x1[0], &x2[0], &x3[0], s, w)
+	}
+}
+
+// r4LastSIMD is r4last (r4notw when scale is 1) with the AVX2 kernels; g.s
+// must be even.
+func r4LastSIMD(y, x []complex128, g *geom, scale float64) {
+	s := g.s
+	for p := range g.m {
+		xb, yb := p*g.xstep, p*g.ystep
+		x0 := x[xb+g.xo[0] : xb+g.xo[0]+s]
+		x1 := x[xb+g.xo[1] : xb+g.xo[1]+s]
+		x2 := x[xb+g.xo[2] : xb+g.xo[2]+s]
+		x3 := x[xb+g.xo[3] : xb+g.xo[3]+s]
+		y0 := y[yb+g.yo[0] : yb+g.yo[0]+s]
+		y1 := y[yb+g.yo[1] : yb+g.yo[1]+s]
+		y2 := y[yb+g.yo[2] : yb+g.yo[2]+s]
+		y3 := y[yb+g.yo[3] : yb+g.yo[3]+s]
+		if scale == 1 {
+			r4notwAVX2(&y0[0], &y1[0], &y2[0], &y3[0], &x0[0], &x1[0], &x2[0], &x3[0], s)
+		} else {
+			r4scaleAVX2(&y0[0], &y1[0], &y2[0], &y3[0], &x0[0], &x1[0], &x2[0], &x3[0], s, scale)
+		}
+	}
+}
