@@ -28,6 +28,13 @@ type kernel1D interface {
 	// complex) and writes sample j at out[j·os], out[j·os+1]. out must not
 	// overlap lo or hi.
 	inverse(out []float64, os int, lo, hi []float64, n int)
+	// forwardRows runs forward on the rows x[r·xs : r·xs+2n], r < rows,
+	// writing row r's output at out[2r:] (stride os): the transposed pass.
+	forwardRows(out []float64, os int, x []float64, xs, rows, n int)
+	// inverseRows runs inverse on the rows src[r·ss : r·ss+2n], r < rows
+	// (low-pass half then high-pass half), writing row r's samples at
+	// out[2r:] (stride os).
+	inverseRows(out []float64, os int, src []float64, ss, rows, n int)
 	// clone returns a kernel with scratch of its own.
 	clone() kernel1D
 }
@@ -43,12 +50,8 @@ func (t *Transform) liftAnalyse(in []float64, inStride int) {
 	rows, stride := in, inStride
 	for l := range t.levels {
 		h, w := t.ny>>l, t.nx>>l
-		for r := range h {
-			t.kern.forward(tb[2*r:], ts, rows[r*stride:r*stride+2*w], w)
-		}
-		for j := range w {
-			t.kern.forward(ub[2*j:], us, tb[j*ts:j*ts+2*h], h)
-		}
+		t.kern.forwardRows(tb, ts, rows, stride, h, w)
+		t.kern.forwardRows(ub, us, tb, ts, w, h)
 		rows, stride = ub, us
 	}
 }
@@ -59,14 +62,8 @@ func (t *Transform) liftSynthesise() {
 	ts, us := 2*t.ts, 2*t.us
 	for l := t.levels - 1; l >= 0; l-- {
 		h, w := t.ny>>l, t.nx>>l
-		for r := range h {
-			row := ub[r*us : r*us+2*w]
-			t.kern.inverse(tb[2*r:], ts, row[:w], row[w:], w)
-		}
-		for j := range w {
-			row := tb[j*ts : j*ts+2*h]
-			t.kern.inverse(ub[2*j:], us, row[:h], row[h:], h)
-		}
+		t.kern.inverseRows(tb, ts, ub, us, h, w)
+		t.kern.inverseRows(ub, us, tb, ts, w, h)
 	}
 }
 
@@ -137,7 +134,7 @@ func (t *Transform) shrinkWork(thr float64) {
 		}
 		tb := thr / abs(t.scale[i])
 		for r := b.Row0; r < b.Row0+b.Rows; r++ {
-			SoftThreshold(t.ub[r*t.us+b.Col0:r*t.us+b.Col0+b.Cols], tb)
+			softThreshold(t.ub[r*t.us+b.Col0:r*t.us+b.Col0+b.Cols], tb)
 		}
 	}
 }
@@ -176,6 +173,19 @@ func (k *stepKernel) clone() kernel1D {
 	c := *k
 	c.u = [2][]float64{make([]float64, len(k.u[0])), make([]float64, len(k.u[1]))}
 	return &c
+}
+
+func (k *stepKernel) forwardRows(out []float64, os int, x []float64, xs, rows, n int) {
+	for r := range rows {
+		k.forward(out[2*r:], os, x[r*xs:r*xs+2*n], n)
+	}
+}
+
+func (k *stepKernel) inverseRows(out []float64, os int, src []float64, ss, rows, n int) {
+	for r := range rows {
+		row := src[r*ss : r*ss+2*n]
+		k.inverse(out[2*r:], os, row[:n], row[n:], n)
+	}
 }
 
 func (k *stepKernel) channels(n2 int) (u [2][]float64, in [2][]float64) {

@@ -1,0 +1,196 @@
+//go:build amd64
+
+#include "textflag.h"
+
+// Register use of the two-row lifting kernels: Y0 … Y7 hold the broadcast
+// coefficients c1, a2, b2, a3, b3, a4, b4, c5 of pipelined (field order);
+// each state register holds one complex value of row 0 (low 128 bits) and
+// the same value of row 1 (high 128 bits). Method: Daubechies I, Sweldens W,
+// "Factoring wavelet transforms into lifting steps", J Fourier Anal Appl
+// 1998; the five steps and their lags are documented in pipelined.go.
+
+// func forwardRun2AVX2(k *pipelined, s *sweepState2, x *float64, xs, count int, out *float64, os, hi int)
+//
+// The analysis sweep of pipelined.forwardRun on two rows. State: Y8 e[i−1],
+// Y9 o[i−1], Y10 o1[i−2], Y11 e2[i−2], Y12 o3[i−3]; per sweep Y13 = e[i],
+// Y14 = o[i] are loaded (row 0 in the low half, row 1 from x + xs in the
+// high half), then
+//
+//	o1[i−1] = o[i−1]  + c1·e[i]
+//	e2[i−1] = e[i−1]  + a2·o1[i−2] + b2·o1[i−1]
+//	o3[i−2] = o1[i−2] + a3·e2[i−2] + b3·e2[i−1]
+//	e4[i−2] = e2[i−2] + a4·o3[i−3] + b4·o3[i−2]   → out
+//	o5[i−2] = o3[i−2] + c5·e4[i−2]                → out + hi
+TEXT ·forwardRun2AVX2(SB), NOSPLIT, $0-64
+	MOVQ k+0(FP), AX
+	MOVQ s+8(FP), BX
+	MOVQ x+16(FP), SI
+	MOVQ xs+24(FP), DX
+	MOVQ count+32(FP), CX
+	MOVQ out+40(FP), DI
+	MOVQ os+48(FP), R8
+	MOVQ hi+56(FP), R9
+	VBROADCASTSD 0(AX), Y0
+	VBROADCASTSD 8(AX), Y1
+	VBROADCASTSD 16(AX), Y2
+	VBROADCASTSD 24(AX), Y3
+	VBROADCASTSD 32(AX), Y4
+	VBROADCASTSD 40(AX), Y5
+	VBROADCASTSD 48(AX), Y6
+	VBROADCASTSD 56(AX), Y7
+	VMOVUPD 0(BX), Y8
+	VMOVUPD 32(BX), Y9
+	VMOVUPD 64(BX), Y10
+	VMOVUPD 96(BX), Y11
+	VMOVUPD 128(BX), Y12
+	LEAQ (SI)(DX*1), R10
+	TESTQ CX, CX
+	JLE  fdone
+
+floop:
+	VMOVUPD     0(SI), X13
+	VINSERTF128 $1, 0(R10), Y13, Y13
+	VMOVUPD     16(SI), X14
+	VINSERTF128 $1, 16(R10), Y14, Y14
+	VFMADD231PD Y0, Y13, Y9   // Y9 = o1[i−1]
+	VFMADD231PD Y1, Y10, Y8
+	VFMADD231PD Y2, Y9, Y8    // Y8 = e2[i−1]
+	VFMADD231PD Y3, Y11, Y10
+	VFMADD231PD Y4, Y8, Y10   // Y10 = o3[i−2]
+	VFMADD231PD Y5, Y12, Y11
+	VFMADD231PD Y6, Y10, Y11  // Y11 = e4[i−2]
+	VMOVUPD     Y11, (DI)
+	VMOVAPD     Y10, Y15
+	VFMADD231PD Y7, Y11, Y15  // Y15 = o5[i−2]
+	VMOVUPD     Y15, (DI)(R9*1)
+	VMOVAPD     Y10, Y12
+	VMOVAPD     Y8, Y11
+	VMOVAPD     Y9, Y10
+	VMOVAPD     Y13, Y8
+	VMOVAPD     Y14, Y9
+	ADDQ        $32, SI
+	ADDQ        $32, R10
+	ADDQ        R8, DI
+	DECQ        CX
+	JNZ         floop
+
+fdone:
+	VMOVUPD Y8, 0(BX)
+	VMOVUPD Y9, 32(BX)
+	VMOVUPD Y10, 64(BX)
+	VMOVUPD Y11, 96(BX)
+	VMOVUPD Y12, 128(BX)
+	VZEROUPPER
+	RET
+
+// func inverseRun2AVX2(k *pipelined, s *sweepState2, lo, hi *float64, ls, count int, out *float64, os int)
+//
+// The synthesis sweep of pipelined.inverseRun on two rows. State: Y8
+// o3[i−1], Y9 e2[i−1], Y10 o1[i−2], Y11 e[i−2]; per sweep Y12 = e4[i] and
+// Y13 = o5[i] are loaded, then
+//
+//	o3[i]   = o5[i]   − c5·e4[i]
+//	e2[i]   = e4[i]   − a4·o3[i−1] − b4·o3[i]
+//	o1[i−1] = o3[i−1] − a3·e2[i−1] − b3·e2[i]
+//	e[i−1]  = e2[i−1] − a2·o1[i−2] − b2·o1[i−1]
+//	e[i−2]                          → out
+//	o[i−2]  = o1[i−2] − c1·e[i−1]   → out + os
+TEXT ·inverseRun2AVX2(SB), NOSPLIT, $0-64
+	MOVQ k+0(FP), AX
+	MOVQ s+8(FP), BX
+	MOVQ lo+16(FP), SI
+	MOVQ hi+24(FP), R11
+	MOVQ ls+32(FP), DX
+	MOVQ count+40(FP), CX
+	MOVQ out+48(FP), DI
+	MOVQ os+56(FP), R8
+	VBROADCASTSD 0(AX), Y0
+	VBROADCASTSD 8(AX), Y1
+	VBROADCASTSD 16(AX), Y2
+	VBROADCASTSD 24(AX), Y3
+	VBROADCASTSD 32(AX), Y4
+	VBROADCASTSD 40(AX), Y5
+	VBROADCASTSD 48(AX), Y6
+	VBROADCASTSD 56(AX), Y7
+	VMOVUPD 0(BX), Y8
+	VMOVUPD 32(BX), Y9
+	VMOVUPD 64(BX), Y10
+	VMOVUPD 96(BX), Y11
+	TESTQ CX, CX
+	JLE  idone
+
+iloop:
+	VMOVUPD      (SI), X12
+	VINSERTF128  $1, (SI)(DX*1), Y12, Y12
+	VMOVUPD      (R11), X13
+	VINSERTF128  $1, (R11)(DX*1), Y13, Y13
+	VFNMADD231PD Y7, Y12, Y13 // Y13 = o3[i]
+	VFNMADD231PD Y5, Y8, Y12
+	VFNMADD231PD Y6, Y13, Y12 // Y12 = e2[i]
+	VFNMADD231PD Y3, Y9, Y8
+	VFNMADD231PD Y4, Y12, Y8  // Y8 = o1[i−1]
+	VFNMADD231PD Y1, Y10, Y9
+	VFNMADD231PD Y2, Y8, Y9   // Y9 = e[i−1]
+	VMOVUPD      Y11, (DI)
+	VFNMADD231PD Y0, Y9, Y10  // Y10 = o[i−2]
+	VMOVUPD      Y10, (DI)(R8*1)
+	VMOVAPD      Y9, Y11
+	VMOVAPD      Y8, Y10
+	VMOVAPD      Y12, Y9
+	VMOVAPD      Y13, Y8
+	ADDQ         $16, SI
+	ADDQ         $16, R11
+	LEAQ         (DI)(R8*2), DI
+	DECQ         CX
+	JNZ          iloop
+
+idone:
+	VMOVUPD Y8, 0(BX)
+	VMOVUPD Y9, 32(BX)
+	VMOVUPD Y10, 64(BX)
+	VMOVUPD Y11, 96(BX)
+	VZEROUPPER
+	RET
+
+// func softThresholdAVX2(x *complex128, n int, thr float64)
+//
+// The complex soft threshold (Donoho 1995) of n complex values, n a
+// multiple of 4, in place: per four values, the squared moduli by VMULPD
+// and VHADDPD (lanes m0, m2, m1, m3), |c| by VSQRTPD, s = max(1 − thr/|c|, 0)
+// by VDIVPD, VSUBPD and VMAXPD (a NaN from 0/0 becomes 0), and the
+// products c·s after VUNPCKLPD / VUNPCKHPD spread s back over the pairs.
+// The operations and their rounding are those of SoftThreshold.
+TEXT ·softThresholdAVX2(SB), NOSPLIT, $0-24
+	MOVQ         x+0(FP), SI
+	MOVQ         n+8(FP), CX
+	VBROADCASTSD thr+16(FP), Y15
+	MOVQ         $0x3ff0000000000000, AX
+	MOVQ         AX, X14
+	VBROADCASTSD X14, Y14
+	VXORPD       Y13, Y13, Y13
+	SHRQ         $2, CX
+	JZ           tdone
+
+tloop:
+	VMOVUPD   (SI), Y0
+	VMOVUPD   32(SI), Y1
+	VMULPD    Y0, Y0, Y2
+	VMULPD    Y1, Y1, Y3
+	VHADDPD   Y3, Y2, Y2
+	VSQRTPD   Y2, Y2
+	VDIVPD    Y2, Y15, Y2
+	VSUBPD    Y2, Y14, Y2
+	VMAXPD    Y13, Y2, Y2
+	VUNPCKLPD Y2, Y2, Y3
+	VUNPCKHPD Y2, Y2, Y4
+	VMULPD    Y3, Y0, Y0
+	VMULPD    Y4, Y1, Y1
+	VMOVUPD   Y0, (SI)
+	VMOVUPD   Y1, 32(SI)
+	ADDQ      $64, SI
+	DECQ      CX
+	JNZ       tloop
+
+tdone:
+	VZEROUPPER
+	RET

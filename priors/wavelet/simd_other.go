@@ -1,0 +1,18 @@
+//go:build !amd64
+
+package wavelet
+
+// simdAvailable is false off amd64: every pass takes the pure-Go kernels.
+const simdAvailable = false
+
+// forwardPairs has no SIMD kernel on this architecture: it does no row.
+func (k *pipelined) forwardPairs(out []float64, os int, x []float64, xs, rows, n int) int { return 0 }
+
+// inversePairs has no SIMD kernel on this architecture: it does no row.
+func (k *pipelined) inversePairs(out []float64, os int, src []float64, ss, rows, n int) int {
+	return 0
+}
+
+// softThresholdSIMD has no SIMD kernel on this architecture: it does no
+// element.
+func softThresholdSIMD(x []complex128, thr float64) int { return 0 }

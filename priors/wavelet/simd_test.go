@@ -1,0 +1,242 @@
+package wavelet
+
+import (
+	"math"
+	"math/rand/v2"
+	"testing"
+)
+
+// setSIMD switches the SIMD kernels on or off and returns the function that
+// restores the previous setting.
+func setSIMD(on bool) func() {
+	old := useSIMD
+	useSIMD = on && simdAvailable
+	return func() { useSIMD = old }
+}
+
+// needSIMD skips a test that compares the two paths on a CPU without the
+// instructions of the SIMD kernels, where only the pure-Go path exists.
+func needSIMD(t *testing.T) {
+	t.Helper()
+	if !simdAvailable {
+		t.Skip("this CPU lacks the instructions of the SIMD kernels")
+	}
+}
+
+// relDiff returns max|a−b| / max|b|.
+func relDiff(a, b []complex128) float64 {
+	var d, m float64
+	for i := range a {
+		d = math.Max(d, math.Abs(real(a[i])-real(b[i])))
+		d = math.Max(d, math.Abs(imag(a[i])-imag(b[i])))
+		m = math.Max(m, math.Max(math.Abs(real(b[i])), math.Abs(imag(b[i]))))
+	}
+	if m == 0 {
+		return d
+	}
+	return d / m
+}
+
+// db4 plans whose passes see even and odd numbers of row pairs, the
+// shortest rows the transform allows (14 = 2·7 samples at the coarsest
+// level) and non-square images.
+var simdCases = []struct{ ny, nx, levels int }{
+	{16, 16, 1},
+	{14, 14, 1},
+	{64, 32, 2},
+	{32, 64, 2},
+	{28, 56, 2},
+	{56, 112, 3},
+	{256, 256, 4},
+	{256, 128, 4},
+	{112, 224, 4},
+}
+
+// Forward, Inverse and Shrink on the SIMD path equal the pure-Go path (the
+// scalar pipelined kernel, itself checked against PyWavelets and the
+// step-by-step lifting) to 1e-13 relative, on random complex images.
+func TestSIMDMatchesPureGo(t *testing.T) {
+	needSIMD(t)
+	for i, c := range simdCases {
+		tr, err := New(c.ny, c.nx, c.levels, "db4")
+		if err != nil {
+			t.Fatalf("%+v: %v", c, err)
+		}
+		if _, ok := tr.kern.(*pipelined); !ok {
+			t.Fatalf("%+v: db4 plan does not use the pipelined kernel", c)
+		}
+		x := randImage(tr.Len(), uint64(700+i))
+		coef := randImage(tr.Len(), uint64(800+i))
+		run := func(on bool) (fw, inv, shr []complex128) {
+			defer setSIMD(on)()
+			fw = make([]complex128, len(x))
+			inv = make([]complex128, len(x))
+			shr = make([]complex128, len(x))
+			tr.Forward(fw, x)
+			tr.Inverse(inv, coef)
+			tr.Shrink(shr, x, 0.7)
+			return
+		}
+		fs, is, ss := run(true)
+		fg, ig, sg := run(false)
+		if d := relDiff(fs, fg); d > 1e-13 {
+			t.Errorf("%+v: Forward SIMD vs pure Go: %.3g relative", c, d)
+		}
+		if d := relDiff(is, ig); d > 1e-13 {
+			t.Errorf("%+v: Inverse SIMD vs pure Go: %.3g relative", c, d)
+		}
+		if d := relDiff(ss, sg); d > 1e-13 {
+			t.Errorf("%+v: Shrink SIMD vs pure Go: %.3g relative", c, d)
+		}
+		if d := relDiff(ss, x); d < 1e-2 {
+			t.Errorf("%+v: the threshold barely changes the image (%.3g): a weak case", c, d)
+		}
+	}
+}
+
+// The multi-row passes on 1 … 5 rows (so odd counts with a leftover row),
+// padded input strides and strided output equal the scalar kernel row by
+// row (pipelined.forward / inverse, checked against the step-by-step
+// lifting), and write nothing outside the output slots of their rows.
+func TestRowPassesMatchScalarKernel(t *testing.T) {
+	needSIMD(t)
+	fb, err := Filters("db4")
+	if err != nil {
+		t.Fatal(err)
+	}
+	k := pipelinedFor(liftingFor(fb))
+	rng := rand.New(rand.NewPCG(21, 22))
+	for _, n := range []int{14, 16, 18, 34, 100, 256} {
+		for _, rows := range []int{1, 2, 3, 4, 5} {
+			xs := 2*n + 6 // padded row stride of the input (floats)
+			os := 2*rows + 8
+			x := make([]float64, rows*xs)
+			for i := range x {
+				x[i] = rng.NormFloat64()
+			}
+			want := make([]float64, n*os)
+			got := make([]float64, n*os)
+			for i := range want {
+				want[i], got[i] = -7, -7 // sentinel in the slots no row owns
+			}
+			for r := range rows {
+				k.forward(want[2*r:], os, x[r*xs:r*xs+2*n], n)
+			}
+			func() {
+				defer setSIMD(true)()
+				k.forwardRows(got, os, x, xs, rows, n)
+			}()
+			if d := maxDiff(got, want); d > 1e-13 {
+				t.Errorf("n=%d rows=%d: forwardRows vs forward: %.3g", n, rows, d)
+			}
+			// Synthesis: the output of the analysis, one row per input row.
+			src := make([]float64, rows*xs)
+			for r := range rows {
+				for j := range n {
+					copy(src[r*xs+2*j:r*xs+2*j+2], want[2*r+j*os:2*r+j*os+2])
+				}
+			}
+			for i := range want {
+				want[i], got[i] = -7, -7
+			}
+			for r := range rows {
+				row := src[r*xs : r*xs+2*n]
+				k.inverse(want[2*r:], os, row[:n], row[n:], n)
+			}
+			func() {
+				defer setSIMD(true)()
+				k.inverseRows(got, os, src, xs, rows, n)
+			}()
+			if d := maxDiff(got, want); d > 1e-13 {
+				t.Errorf("n=%d rows=%d: inverseRows vs inverse: %.3g", n, rows, d)
+			}
+			// And the synthesis of the analysis is the input.
+			var back float64
+			for r := range rows {
+				for j := range n {
+					back = math.Max(back, math.Abs(got[2*r+j*os]-x[r*xs+2*j]))
+					back = math.Max(back, math.Abs(got[2*r+j*os+1]-x[r*xs+2*j+1]))
+				}
+			}
+			if back > 1e-12 {
+				t.Errorf("n=%d rows=%d: SIMD synthesis of the analysis off by %.3g", n, rows, back)
+			}
+		}
+	}
+}
+
+// The SIMD soft threshold equals SoftThreshold (Donoho 1995; checked
+// against hand values in TestSoftThreshold) on every length, including
+// the scalar tail, zeros, values at the threshold, infinities and a zero
+// threshold.
+func TestSoftThresholdSIMDMatchesScalar(t *testing.T) {
+	needSIMD(t)
+	rng := rand.New(rand.NewPCG(31, 32))
+	special := []complex128{0, 1, -1i, complex(0.6, 0.8), complex(math.Inf(1), 0), complex(3, math.Inf(-1)), complex(-2, 5)}
+	for _, thr := range []float64{0, 0.5, 1, 3} {
+		for n := range 23 {
+			x := make([]complex128, n)
+			for i := range x {
+				if i < len(special) && n%2 == 1 {
+					x[i] = special[i]
+				} else {
+					x[i] = complex(rng.NormFloat64(), rng.NormFloat64())
+				}
+			}
+			want := append([]complex128(nil), x...)
+			SoftThreshold(want, thr)
+			got := append([]complex128(nil), x...)
+			func() {
+				defer setSIMD(true)()
+				softThreshold(got, thr)
+			}()
+			for i := range got {
+				dr := math.Abs(real(got[i]) - real(want[i]))
+				di := math.Abs(imag(got[i]) - imag(want[i]))
+				same := (dr <= 1e-15 || real(got[i]) == real(want[i])) && (di <= 1e-15 || imag(got[i]) == imag(want[i]))
+				if !same {
+					t.Errorf("thr=%g n=%d: soft(%v) = %v on the SIMD path, %v in pure Go", thr, n, x[i], got[i], want[i])
+				}
+			}
+		}
+	}
+}
+
+// The pure-Go path on its own against the PyWavelets fixtures, on a CPU
+// where the other tests take the SIMD path.
+func TestPureGoPathAgainstPyWavelets(t *testing.T) {
+	defer setSIMD(false)()
+	t.Run("forward", TestForwardAgainstPyWavelets)
+	t.Run("shrink", TestShrinkAgainstPyWavelets)
+}
+
+// The SIMD path allocates nothing either.
+func TestSIMDNoAllocations(t *testing.T) {
+	needSIMD(t)
+	defer setSIMD(true)()
+	tr, err := New(64, 64, 3, "db4")
+	if err != nil {
+		t.Fatal(err)
+	}
+	x := randImage(tr.Len(), 1)
+	w := make([]complex128, len(x))
+	if a := testing.AllocsPerRun(20, func() {
+		tr.Forward(w, x)
+		tr.Shrink(w, w, 0.3)
+		tr.Inverse(x, w)
+	}); a != 0 {
+		t.Errorf("SIMD path allocates %.1f times per Forward+Shrink+Inverse", a)
+	}
+}
+
+// The pure-Go path of the benchmarks, for the before/after ratio.
+func BenchmarkShrink256Db4L4PureGo(b *testing.B) {
+	defer setSIMD(false)()
+	BenchmarkShrink256Db4L4(b)
+}
+
+// The pure-Go path of BenchmarkForwardInverse256Db4L4.
+func BenchmarkForwardInverse256Db4L4PureGo(b *testing.B) {
+	defer setSIMD(false)()
+	BenchmarkForwardInverse256Db4L4(b)
+}
