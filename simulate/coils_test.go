@@ -1021,3 +1021,31 @@ func BenchmarkSENSECartesianForwardAdjoint256(b *testing.B) {
 		})
 	}
 }
+
+// EᴴE of the same operators through Normal: for this mask of whole rows the
+// column transforms only (compare with BenchmarkSENSECartesianForwardAdjoint256).
+func BenchmarkSENSECartesianNormal256(b *testing.B) {
+	const n = 256
+	a, _ := DefaultCoilRing(8).Build()
+	maps, _ := a.Maps(n, n)
+	mask := make([]bool, n*n)
+	for i := range mask {
+		mask[i] = (i/n)%2 == 0
+	}
+	nc, _ := NewNoiseCovariance(8, RingNoiseCovariance(8, 0.3))
+	single, _ := NewCartesian(n, n, mask)
+	eight, _ := NewCartesianSENSE(n, n, mask, maps, nil)
+	white, _ := NewCartesianSENSE(n, n, mask, maps, nc)
+	for _, c := range []struct {
+		name string
+		op   NormalOperator
+	}{{"single-coil Cartesian", single}, {"SENSE 8 coils", eight}, {"SENSE 8 coils whitened", white}} {
+		b.Run(c.name, func(b *testing.B) {
+			x := make([]complex128, c.op.ImageLen())
+			g := make([]complex128, c.op.ImageLen())
+			for b.Loop() {
+				c.op.Normal(g, x)
+			}
+		})
+	}
+}

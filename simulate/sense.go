@@ -35,6 +35,11 @@ type SENSE struct {
 	n, m  int
 	img   []complex128 // scratch, ImageLen
 	dat   []complex128 // scratch, DataLen, only with whitening
+
+	// Made by Normal on its first call: a second image, the data (when base
+	// has no Normal) and, with whitening, the mixed maps of Normal.
+	img2, stack []complex128
+	mixed       [][]complex128
 }
 
 // NewSENSE builds the operator from a single-coil operator base, one
@@ -106,7 +111,7 @@ func (s *SENSE) Clone() (*SENSE, error) {
 	default:
 		return nil, fmt.Errorf("simulate: cannot clone a SENSE operator over %T", s.base)
 	}
-	t := &SENSE{base: base, maps: s.maps, noise: s.noise, n: s.n, m: s.m, img: make([]complex128, s.n)}
+	t := &SENSE{base: base, maps: s.maps, noise: s.noise, n: s.n, m: s.m, img: make([]complex128, s.n), mixed: s.mixed}
 	if s.dat != nil {
 		t.dat = make([]complex128, len(s.dat))
 	}
@@ -170,6 +175,70 @@ func (s *SENSE) Adjoint(dst, src []complex128) {
 			dst[i] += complex(real(w), -imag(w)) * v
 		}
 	}
+}
+
+// Normal computes dst = EᴴE·src. When the single-coil operator is a
+// NormalOperator (a Cartesian mask of whole rows) it runs
+//
+//	EᴴE = Σ_c S_cᴴ·N·T_c,  T_c = Σ_d (WᴴW)_cd·S_d,  N = FᴴF of the single coil,
+//
+// since the coil mixing WᴴW = Ψ⁻¹ acts per sample and commutes with the
+// linear N: one N per coil instead of a Forward and an Adjoint, and with
+// whitening the mixed maps T_c computed once. Otherwise it is
+// Adjoint∘Forward. The first call allocates what it needs (with whitening
+// Coils() images for T); later calls allocate nothing.
+func (s *SENSE) Normal(dst, src []complex128) {
+	if len(dst) != s.n || len(src) != s.n {
+		panic(fmt.Sprintf("simulate: SENSE Normal with %d and %d pixels, want %d", len(dst), len(src), s.n))
+	}
+	nb, ok := s.base.(NormalOperator)
+	if !ok {
+		if s.stack == nil {
+			s.stack = make([]complex128, s.DataLen())
+		}
+		s.Forward(s.stack, src)
+		s.Adjoint(dst, s.stack)
+		return
+	}
+	if s.img2 == nil {
+		s.img2 = make([]complex128, s.n)
+	}
+	in := s.maps
+	if s.noise != nil {
+		if s.mixed == nil {
+			s.mixed = mixMaps(s.maps, s.noise.Inverse())
+		}
+		in = s.mixed
+	}
+	clear(dst)
+	for c, sc := range s.maps {
+		img, tc := s.img, in[c]
+		for i, v := range src {
+			img[i] = tc[i] * v
+		}
+		nb.Normal(s.img2, img)
+		for i, v := range s.img2 {
+			w := sc[i]
+			dst[i] += complex(real(w), -imag(w)) * v
+		}
+	}
+}
+
+// mixMaps returns T_c = Σ_d inv[c·n+d]·maps[d] for the n×n row-major inv.
+func mixMaps(maps [][]complex128, inv []complex128) [][]complex128 {
+	n := len(maps)
+	out := make([][]complex128, n)
+	for c := range out {
+		t := make([]complex128, len(maps[c]))
+		for d, sd := range maps {
+			v := inv[c*n+d]
+			for i, s := range sd {
+				t[i] += v * s
+			}
+		}
+		out[c] = t
+	}
+	return out
 }
 
 // CoilImages writes Fᴴ applied to each coil's (whitened, if the operator
