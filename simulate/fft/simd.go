@@ -29,3 +29,27 @@ func r4LastPass(y, x []complex128, g *geom, scale float64) {
 	}
 	r4last(y, x, g, scale)
 }
+
+// r8Pass runs a twiddled radix-8 pass, like r4Pass.
+func r8Pass(y, x []complex128, tw []float64, g *geom) {
+	if useSIMD && g.s%2 == 0 {
+		r8PassSIMD(y, x, tw, g)
+		return
+	}
+	r8notw(y, x, g, 1)
+	r8(y, x, tw, g)
+}
+
+// r8LastPass runs the last radix-8 pass with the given scale, like
+// r4LastPass.
+func r8LastPass(y, x []complex128, g *geom, scale float64) {
+	if useSIMD && g.s%2 == 0 {
+		r8LastSIMD(y, x, g, scale)
+		return
+	}
+	if scale == 1 {
+		r8notw(y, x, g, g.m)
+		return
+	}
+	r8last(y, x, g, scale)
+}

@@ -79,3 +79,62 @@ func r4LastSIMD(y, x []complex128, g *geom, scale float64) {
 		}
 	}
 }
+
+// The radix-8 kernels run the q-loop of one radix-8 group the same way; p
+// holds the eight output run pointers, then the eight input run pointers.
+// The butterfly is split radix 2·4 as in gen_kernels.py. They read all eight
+// inputs of a position before storing, so they may run in place.
+
+// r8notwAVX2 writes the twiddle-free radix-8 butterfly.
+//
+//go:noescape
+func r8notwAVX2(p *[16]*complex128, n int)
+
+// r8twAVX2 writes the radix-8 butterfly, output i ≥ 1 times the twiddle
+// (w[2i-2], w[2i-1]).
+//
+//go:noescape
+func r8twAVX2(p *[16]*complex128, n int, w *[14]float64)
+
+// r8scaleAVX2 writes the twiddle-free radix-8 butterfly times scale.
+//
+//go:noescape
+func r8scaleAVX2(p *[16]*complex128, n int, scale float64)
+
+// runs8 fills ptr with the output and input runs of group p of g.
+func runs8(ptr *[16]*complex128, y, x []complex128, g *geom, p int) {
+	s := g.s
+	xb, yb := p*g.xstep, p*g.ystep
+	for k := range 8 {
+		ptr[k] = &y[yb+g.yo[k] : yb+g.yo[k]+s][0]
+		ptr[8+k] = &x[xb+g.xo[k] : xb+g.xo[k]+s][0]
+	}
+}
+
+// r8PassSIMD is r8notw for group 0 and r8 for the others with the AVX2
+// kernels; g.s must be even.
+func r8PassSIMD(y, x []complex128, tw []float64, g *geom) {
+	var ptr [16]*complex128
+	for p := range g.m {
+		runs8(&ptr, y, x, g, p)
+		if p == 0 {
+			r8notwAVX2(&ptr, g.s)
+			continue
+		}
+		r8twAVX2(&ptr, g.s, (*[14]float64)(tw[14*p:14*p+14]))
+	}
+}
+
+// r8LastSIMD is r8last (r8notw when scale is 1) with the AVX2 kernels; g.s
+// must be even.
+func r8LastSIMD(y, x []complex128, g *geom, scale float64) {
+	var ptr [16]*complex128
+	for p := range g.m {
+		runs8(&ptr, y, x, g, p)
+		if scale == 1 {
+			r8notwAVX2(&ptr, g.s)
+		} else {
+			r8scaleAVX2(&ptr, g.s, scale)
+		}
+	}
+}

@@ -120,3 +120,163 @@ twloop:
 	JB   twloop
 	VZEROUPPER
 	RET
+
+// ---- radix 8 ----
+//
+// The radix-8 kernels take p, eight output run pointers followed by eight
+// input run pointers. The inputs stay in R8..R14 and AX (R14 is free in an
+// ABI0 function: its wrapper restores it), indexed by SI; the output pointers
+// are reloaded from p (BX) for each store. Y14 holds √½.
+
+DATA sqrthalf<>+0(SB)/8, $0x3fe6a09e667f3bcd
+GLOBL sqrthalf<>(SB), RODATA|NOPTR, $8
+
+// LOAD8 loads the input pointers, the end offset and the constants.
+#define LOAD8 \
+	MOVQ p+0(FP), BX \
+	MOVQ 64(BX), R8 \
+	MOVQ 72(BX), R9 \
+	MOVQ 80(BX), R10 \
+	MOVQ 88(BX), R11 \
+	MOVQ 96(BX), R12 \
+	MOVQ 104(BX), R13 \
+	MOVQ 112(BX), R14 \
+	MOVQ 120(BX), AX \
+	MOVQ n+8(FP), DI \
+	SHLQ $4, DI \
+	XORQ SI, SI \
+	VMOVUPD oddsign<>(SB), Y15 \
+	VBROADCASTSD sqrthalf<>(SB), Y14
+
+// BFLY8 computes the radix-8 butterfly of two positions (the same
+// operations as the Go body of gen_kernels.py), reading all eight inputs
+// first. On exit out0..out7 are in Y10, Y1, Y11, Y3, Y9, Y4, Y8, Y0; Y2, Y5,
+// Y6, Y7, Y12 and Y13 are free.
+#define BFLY8 \
+	VMOVUPD (R8)(SI*1), Y0 \
+	VMOVUPD (R9)(SI*1), Y1 \
+	VMOVUPD (R10)(SI*1), Y2 \
+	VMOVUPD (R11)(SI*1), Y3 \
+	VMOVUPD (R12)(SI*1), Y4 \
+	VMOVUPD (R13)(SI*1), Y5 \
+	VMOVUPD (R14)(SI*1), Y6 \
+	VMOVUPD (AX)(SI*1), Y7 \
+	VADDPD Y4, Y0, Y8 \
+	VSUBPD Y4, Y0, Y0 \
+	VADDPD Y6, Y2, Y4 \
+	VSUBPD Y6, Y2, Y2 \
+	VADDPD Y5, Y1, Y6 \
+	VSUBPD Y5, Y1, Y1 \
+	VADDPD Y7, Y3, Y5 \
+	VSUBPD Y7, Y3, Y3 \
+	VADDPD Y4, Y8, Y9 \
+	VSUBPD Y4, Y8, Y8 \
+	VADDPD Y5, Y6, Y4 \
+	VSUBPD Y5, Y6, Y6 \
+	VPERMILPD $5, Y6, Y6 \
+	VXORPD Y15, Y6, Y6 \
+	VADDPD Y4, Y9, Y10 \
+	VSUBPD Y4, Y9, Y9 \
+	VADDPD Y6, Y8, Y11 \
+	VSUBPD Y6, Y8, Y8 \
+	VSUBPD Y3, Y1, Y4 \
+	VADDPD Y3, Y1, Y1 \
+	VPERMILPD $5, Y1, Y5 \
+	VXORPD Y15, Y5, Y5 \
+	VADDPD Y5, Y4, Y6 \
+	VMULPD Y14, Y6, Y6 \
+	VSUBPD Y4, Y5, Y5 \
+	VMULPD Y14, Y5, Y5 \
+	VPERMILPD $5, Y2, Y2 \
+	VXORPD Y15, Y2, Y2 \
+	VADDPD Y2, Y0, Y4 \
+	VSUBPD Y2, Y0, Y0 \
+	VADDPD Y6, Y4, Y1 \
+	VSUBPD Y6, Y4, Y4 \
+	VADDPD Y5, Y0, Y3 \
+	VSUBPD Y5, Y0, Y0
+
+// ST8 stores V to output run i.
+#define ST8(i, V) \
+	MOVQ (8*i)(BX), CX \
+	VMOVUPD V, (CX)(SI*1)
+
+// TWST8 multiplies V by twiddle i ≥ 1, (w[2i-2], w[2i-1]) at DX, and stores
+// it to output run i.
+#define TWST8(i, V) \
+	VBROADCASTSD (16*i-16)(DX), Y12 \
+	VBROADCASTSD (16*i-8)(DX), Y13 \
+	VPERMILPD $5, V, Y2 \
+	VMULPD Y13, Y2, Y2 \
+	VFMADDSUB231PD Y12, V, Y2 \
+	ST8(i, Y2)
+
+// func r8notwAVX2(p *[16]*complex128, n int)
+TEXT ·r8notwAVX2(SB), NOSPLIT, $0-16
+	LOAD8
+
+notw8loop:
+	BFLY8
+	ST8(0, Y10)
+	ST8(1, Y1)
+	ST8(2, Y11)
+	ST8(3, Y3)
+	ST8(4, Y9)
+	ST8(5, Y4)
+	ST8(6, Y8)
+	ST8(7, Y0)
+	ADDQ $32, SI
+	CMPQ SI, DI
+	JB   notw8loop
+	VZEROUPPER
+	RET
+
+// func r8scaleAVX2(p *[16]*complex128, n int, scale float64)
+TEXT ·r8scaleAVX2(SB), NOSPLIT, $0-24
+	LOAD8
+	VBROADCASTSD scale+16(FP), Y12
+
+scale8loop:
+	BFLY8
+	VMULPD Y12, Y10, Y10
+	VMULPD Y12, Y1, Y1
+	VMULPD Y12, Y11, Y11
+	VMULPD Y12, Y3, Y3
+	VMULPD Y12, Y9, Y9
+	VMULPD Y12, Y4, Y4
+	VMULPD Y12, Y8, Y8
+	VMULPD Y12, Y0, Y0
+	ST8(0, Y10)
+	ST8(1, Y1)
+	ST8(2, Y11)
+	ST8(3, Y3)
+	ST8(4, Y9)
+	ST8(5, Y4)
+	ST8(6, Y8)
+	ST8(7, Y0)
+	ADDQ $32, SI
+	CMPQ SI, DI
+	JB   scale8loop
+	VZEROUPPER
+	RET
+
+// func r8twAVX2(p *[16]*complex128, n int, w *[14]float64)
+TEXT ·r8twAVX2(SB), NOSPLIT, $0-24
+	LOAD8
+	MOVQ w+16(FP), DX
+
+tw8loop:
+	BFLY8
+	ST8(0, Y10)
+	TWST8(1, Y1)
+	TWST8(2, Y11)
+	TWST8(3, Y3)
+	TWST8(4, Y9)
+	TWST8(5, Y4)
+	TWST8(6, Y8)
+	TWST8(7, Y0)
+	ADDQ $32, SI
+	CMPQ SI, DI
+	JB   tw8loop
+	VZEROUPPER
+	RET

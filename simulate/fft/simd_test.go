@@ -83,59 +83,78 @@ func TestSIMDMatches1D(t *testing.T) {
 	}
 }
 
-// TestSIMDKernels calls the AVX2 pass kernels directly on a random radix-4
-// geometry (so that the check cannot pass by falling back to Go) and
-// compares them with the generated Go kernels r4notw, r4 and r4last, for run
-// lengths 2 to 40 and for output runs that coincide with the input runs.
+// kernelSet is one radix's pure-Go kernels and their AVX2 counterparts.
+type kernelSet struct {
+	r        int
+	notw     func(y, x []complex128, g *geom, groups int)
+	tw       func(y, x []complex128, tw []float64, g *geom)
+	last     func(y, x []complex128, g *geom, scale float64)
+	passSIMD func(y, x []complex128, tw []float64, g *geom)
+	lastSIMD func(y, x []complex128, g *geom, scale float64)
+}
+
+// TestSIMDKernels calls the AVX2 pass kernels directly on random radix-4
+// and radix-8 geometries (so that the check cannot pass by falling back to
+// Go) and compares them with the generated Go kernels rRnotw, rR and rRlast,
+// for run lengths 2 to 40, rotated output slots, and output runs that
+// coincide with the input runs.
 func TestSIMDKernels(t *testing.T) {
 	if !haveSIMD {
 		t.Skip("CPU without AVX2+FMA: only the pure-Go kernels exist")
 	}
-	r := rand.New(rand.NewPCG(4, 4))
-	for s := 2; s <= 40; s += 2 {
-		m := 1 + r.IntN(5)
-		n := 4 * m * s
-		g := geom{m: m, s: s, xstep: s, ystep: 4 * s}
-		for k := range 4 {
-			g.xo[k] = k * m * s
-			g.yo[k] = ((k + 2*(s/2%2)) % 4) * s // some sizes with rotated output slots
-		}
-		x := randVec(n, uint64(s))
-		tw := make([]float64, 6*m)
-		for i := range tw {
-			tw[i] = r.NormFloat64()
-		}
-		for _, mode := range []string{"pass", "last1", "last"} {
-			want := make([]complex128, n)
-			got := make([]complex128, n)
-			switch mode {
-			case "pass":
-				r4notw(want, x, &g, 1)
-				r4(want, x, tw, &g)
-				r4PassSIMD(got, x, tw, &g)
-			case "last1":
-				r4notw(want, x, &g, g.m)
-				r4LastSIMD(got, x, &g, 1)
-			default:
-				r4last(want, x, &g, 0.37)
-				r4LastSIMD(got, x, &g, 0.37)
+	sets := []kernelSet{
+		{r: 4, notw: r4notw, tw: r4, last: r4last, passSIMD: r4PassSIMD, lastSIMD: r4LastSIMD},
+		{r: 8, notw: r8notw, tw: r8, last: r8last, passSIMD: r8PassSIMD, lastSIMD: r8LastSIMD},
+	}
+	rnd := rand.New(rand.NewPCG(4, 4))
+	for _, ks := range sets {
+		r := ks.r
+		for s := 2; s <= 40; s += 2 {
+			m := 1 + rnd.IntN(5)
+			n := r * m * s
+			rot := rnd.IntN(r)
+			g := geom{m: m, s: s, xstep: s, ystep: r * s}
+			for k := range r {
+				g.xo[k] = ((k*3 + rot) % r) * m * s // a permutation of the input slots
+				g.yo[k] = ((k + rot) % r) * s       // rotated output slots
 			}
+			x := randVec(n, uint64(s))
+			tw := make([]float64, 2*(r-1)*m)
+			for i := range tw {
+				tw[i] = rnd.NormFloat64()
+			}
+			for _, mode := range []string{"pass", "last1", "last"} {
+				want := make([]complex128, n)
+				got := make([]complex128, n)
+				switch mode {
+				case "pass":
+					ks.notw(want, x, &g, 1)
+					ks.tw(want, x, tw, &g)
+					ks.passSIMD(got, x, tw, &g)
+				case "last1":
+					ks.notw(want, x, &g, g.m)
+					ks.lastSIMD(got, x, &g, 1)
+				default:
+					ks.last(want, x, &g, 0.37)
+					ks.lastSIMD(got, x, &g, 0.37)
+				}
+				if e := relErr(got, want); e > 1e-15 {
+					t.Errorf("radix %d s=%d m=%d %s: AVX2 kernel differs from Go kernel by %.3g", r, s, m, mode, e)
+				}
+			}
+			// In place: one group whose outputs overwrite its inputs.
+			g1 := geom{m: 1, s: s}
+			for k := range r {
+				g1.xo[k] = k * s
+				g1.yo[k] = ((k + r/2) % r) * s
+			}
+			want := make([]complex128, r*s)
+			ks.last(want, x[:r*s], &g1, 0.5)
+			got := append([]complex128(nil), x[:r*s]...)
+			ks.lastSIMD(got, got, &g1, 0.5)
 			if e := relErr(got, want); e > 1e-15 {
-				t.Errorf("s=%d m=%d %s: AVX2 kernel differs from Go kernel by %.3g", s, m, mode, e)
+				t.Errorf("radix %d s=%d in place: AVX2 last kernel differs from Go kernel by %.3g", r, s, e)
 			}
-		}
-		// In place: one group whose outputs overwrite its inputs.
-		g1 := geom{m: 1, s: s, xstep: 0, ystep: 0}
-		for k := range 4 {
-			g1.xo[k] = k * s
-			g1.yo[k] = ((k + 2) % 4) * s
-		}
-		want := make([]complex128, 4*s)
-		r4last(want, x[:4*s], &g1, 0.5)
-		got := append([]complex128(nil), x[:4*s]...)
-		r4LastSIMD(got, got, &g1, 0.5)
-		if e := relErr(got, want); e > 1e-15 {
-			t.Errorf("s=%d in place: AVX2 last kernel differs from Go kernel by %.3g", s, e)
 		}
 	}
 }

@@ -375,11 +375,11 @@ func (st *stage) geometry(g *geom, first, last bool, l layout, inv, centred bool
 func run(st *stage, y, x []complex128, tw []float64, g *geom, wk *work) {
 	switch st.radix {
 	case 8:
-		r8notw(y, x, g, 1)
 		if g.s == 1 && g.xstep == 1 {
+			r8notw(y, x, g, 1)
 			r8s1(y, x, tw, g)
 		} else {
-			r8(y, x, tw, g)
+			r8Pass(y, x, tw, g)
 		}
 	case 4:
 		if g.s == 1 && g.xstep == 1 {
@@ -407,7 +407,7 @@ func runLast(st *stage, y, x []complex128, g *geom, scale float64, wk *work) {
 	if scale == 1 {
 		switch st.radix {
 		case 8:
-			r8notw(y, x, g, g.m)
+			r8LastPass(y, x, g, 1)
 			return
 		case 4:
 			r4LastPass(y, x, g, 1)
@@ -425,7 +425,7 @@ func runLast(st *stage, y, x []complex128, g *geom, scale float64, wk *work) {
 	}
 	switch st.radix {
 	case 8:
-		r8last(y, x, g, scale)
+		r8LastPass(y, x, g, scale)
 	case 4:
 		r4LastPass(y, x, g, scale)
 	case 2:
