@@ -302,7 +302,23 @@ type figView struct {
 }
 
 // formatSeconds prints seconds with one decimal ("128.0 s").
-func formatSeconds(s float64) string { return strconv.FormatFloat(s, 'f', 1, 64) + " s" }
+func formatSeconds(s float64) string {
+	if math.Abs(s) < 10 {
+		return strconv.FormatFloat(s, 'f', 2, 64) + " s"
+	}
+	return strconv.FormatFloat(s, 'f', 1, 64) + " s"
+}
+
+// reportTime is a scan time as the report's headings and tables show it:
+// clock time (FormatMinSec) from ten seconds on, seconds with two decimals
+// below, where whole-second clock time would read 0:00 for the sub-second
+// acquisitions of optical tomography.
+func reportTime(s float64) string {
+	if math.Abs(s) < 10 {
+		return formatSeconds(s)
+	}
+	return FormatMinSec(s)
+}
 
 // formatR prints an acceleration factor with at most two decimals.
 func formatR(r float64) string {
@@ -391,7 +407,7 @@ func buildReportView(r Report) (*reportView, error) {
 		Facts:          r.Facts,
 		Metric:         metric,
 		BarShort:       fmt.Sprintf("%s %s %s", metric, op, formatValue(r.Threshold)),
-		Reference:      FormatMinSec(r.ReferenceTime) + " (" + formatSeconds(r.ReferenceTime) + ")",
+		Reference:      reportTime(r.ReferenceTime) + " (" + formatSeconds(r.ReferenceTime) + ")",
 		ReferenceLabel: r.ReferenceLabel,
 		ErrorNote:      r.ErrorNote,
 		Script:         template.JS(reportScript),
@@ -590,8 +606,8 @@ func buildPick(what string, p ReportPick, ref float64) (pickView, error) {
 	saved := ref - p.ScanTime
 	pv := pickView{
 		Found: true, Protocol: p.Protocol, Scheme: p.Scheme, Method: p.Method,
-		Time: FormatMinSec(p.ScanTime), Seconds: formatSeconds(p.ScanTime),
-		Saved: FormatMinSec(math.Abs(saved)), SavedSeconds: formatSeconds(math.Abs(saved)),
+		Time: reportTime(p.ScanTime), Seconds: formatSeconds(p.ScanTime),
+		Saved: reportTime(math.Abs(saved)), SavedSeconds: formatSeconds(math.Abs(saved)),
 		SavedPct: strconv.FormatFloat(100*math.Abs(saved)/ref, 'f', 1, 64) + "%",
 		Longer:   saved < 0,
 		Mean:     formatValue(p.Mean), Bound: formatValue(p.Bound),
@@ -631,7 +647,7 @@ func buildCandidate(k, i int, c ReportCandidate, r Report, metric string, shared
 	cv := candView{
 		ID: fmt.Sprintf("cand-%d", k+1), Number: strconv.Itoa(k + 1),
 		Label: label, Scheme: c.Scheme, Method: c.Method, Group: group,
-		Time: FormatMinSec(c.ScanTime), Seconds: formatSeconds(c.ScanTime),
+		Time: reportTime(c.ScanTime), Seconds: formatSeconds(c.ScanTime),
 		Lambda: c.Lambda, Note: c.Note, Meets: c.Meets, Pick: c.Pick,
 	}
 	if !finiteReport(c.R) || c.R < 0 {

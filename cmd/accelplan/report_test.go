@@ -130,9 +130,14 @@ func atof(t *testing.T, s string) float64 {
 	return x
 }
 
-// minSec formats seconds as m:ss, rounded to the nearest second, written
-// here from the definition rather than taken from the out package.
+// minSec formats seconds as the report shows them: m:ss, rounded to the
+// nearest second, from ten seconds on, and seconds with two decimals below
+// (so that sub-second acquisitions do not read 0:00). Written here from that
+// rule rather than taken from the out package.
 func minSec(s float64) string {
+	if s < 10 {
+		return fmt.Sprintf("%.2f s", s)
+	}
 	n := int(math.Round(s))
 	return fmt.Sprintf("%d:%02d", n/60, n%60)
 }
