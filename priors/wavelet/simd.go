@@ -1,10 +1,11 @@
 package wavelet
 
 // Multi-row passes: the SIMD kernels of simd_amd64.s run the pipelined db4
-// sweep on two adjacent rows at once. Because every pass writes its output
+// sweep on two (AVX2) or four (AVX-512F) adjacent rows at once. Because every pass writes its output
 // transposed (row r of the input becomes column r of the output, lift2d.go),
-// the outputs of rows r and r+1 are adjacent complex slots, so one 256-bit
-// register holds one complex value of each row, one store writes both, and
+// the outputs of rows r, r+1, … are adjacent complex slots, so one 256-bit
+// (512-bit) register holds one complex value of each row, one store writes
+// them all, and
 // the lifting steps are FMAs with broadcast coefficients and no dependence
 // between the lanes. A leftover row, and every row where the CPU lacks the
 // instructions, takes the pure-Go kernel of pipelined.go.
@@ -13,6 +14,11 @@ package wavelet
 // soft threshold). It starts as simdAvailable; tests switch it off to run
 // the pure-Go path and compare.
 var useSIMD = simdAvailable
+
+// use512 selects, while useSIMD is on, the four-row AVX-512F lifting
+// kernels for groups of four adjacent rows (the two-row AVX2 kernels take
+// the rest). Tests switch it to run both widths.
+var use512 = avx512Available
 
 // forwardRows analyses the rows x[r·xs : r·xs+2n] (floats), r < rows, of n
 // complex samples each, writing row r's output at out[2r:] with output

@@ -9,7 +9,7 @@
 // "Factoring wavelet transforms into lifting steps", J Fourier Anal Appl
 // 1998; the five steps and their lags are documented in pipelined.go.
 
-// func forwardRun2AVX2(k *pipelined, s *sweepState2, x *float64, xs, count int, out *float64, os, hi int)
+// func forwardRun2AVX2(k *pipelined, s *float64, x *float64, xs, count int, out *float64, os, hi int)
 //
 // The analysis sweep of pipelined.forwardRun on two rows. State: Y8 e[i−1],
 // Y9 o[i−1], Y10 o1[i−2], Y11 e2[i−2], Y12 o3[i−3]; per sweep Y13 = e[i],
@@ -83,7 +83,7 @@ fdone:
 	VZEROUPPER
 	RET
 
-// func inverseRun2AVX2(k *pipelined, s *sweepState2, lo, hi *float64, ls, count int, out *float64, os int)
+// func inverseRun2AVX2(k *pipelined, s *float64, lo, hi *float64, ls, count int, out *float64, os int)
 //
 // The synthesis sweep of pipelined.inverseRun on two rows. State: Y8
 // o3[i−1], Y9 e2[i−1], Y10 o1[i−2], Y11 e[i−2]; per sweep Y12 = e4[i] and
@@ -192,5 +192,151 @@ tloop:
 	JNZ       tloop
 
 tdone:
+	VZEROUPPER
+	RET
+
+// Register use of the four-row lifting kernels (AVX-512F): Z0 … Z7 hold the
+// broadcast coefficients as in the two-row kernels; each state register
+// holds one complex value of rows 0, 1, 2, 3 in its four 128-bit lanes, so
+// that one 64-byte store writes a whole cache line of the transposed output.
+
+// func forwardRun4AVX512(k *pipelined, s *float64, x *float64, xs, count int, out *float64, os, hi int)
+//
+// The analysis sweep of forwardRun2AVX2 on four rows at x + r·xs bytes,
+// r < 4. The pairs (e, o) of rows 0, 1 and of rows 2, 3 are loaded as two
+// 512-bit registers [e0 o0 e1 o1], [e2 o2 e3 o3] and split by VSHUFF64X2
+// into e = [e0 e1 e2 e3] and o = [o0 o1 o2 o3].
+TEXT ·forwardRun4AVX512(SB), NOSPLIT, $0-64
+	MOVQ k+0(FP), AX
+	MOVQ s+8(FP), BX
+	MOVQ x+16(FP), SI
+	MOVQ xs+24(FP), DX
+	MOVQ count+32(FP), CX
+	MOVQ out+40(FP), DI
+	MOVQ os+48(FP), R8
+	MOVQ hi+56(FP), R9
+	VBROADCASTSD 0(AX), Z0
+	VBROADCASTSD 8(AX), Z1
+	VBROADCASTSD 16(AX), Z2
+	VBROADCASTSD 24(AX), Z3
+	VBROADCASTSD 32(AX), Z4
+	VBROADCASTSD 40(AX), Z5
+	VBROADCASTSD 48(AX), Z6
+	VBROADCASTSD 56(AX), Z7
+	VMOVUPD 0(BX), Z8
+	VMOVUPD 64(BX), Z9
+	VMOVUPD 128(BX), Z10
+	VMOVUPD 192(BX), Z11
+	VMOVUPD 256(BX), Z12
+	LEAQ (SI)(DX*1), R10
+	LEAQ (SI)(DX*2), R11
+	LEAQ (R11)(DX*1), R12
+	TESTQ CX, CX
+	JLE  f4done
+
+f4loop:
+	VMOVUPD      (SI), Y16
+	VINSERTF64X4 $1, (R10), Z16, Z16
+	VMOVUPD      (R11), Y17
+	VINSERTF64X4 $1, (R12), Z17, Z17
+	VSHUFF64X2   $0x88, Z17, Z16, Z13 // e[i]
+	VSHUFF64X2   $0xdd, Z17, Z16, Z14 // o[i]
+	VFMADD231PD  Z0, Z13, Z9          // Z9 = o1[i−1]
+	VFMADD231PD  Z1, Z10, Z8
+	VFMADD231PD  Z2, Z9, Z8           // Z8 = e2[i−1]
+	VFMADD231PD  Z3, Z11, Z10
+	VFMADD231PD  Z4, Z8, Z10          // Z10 = o3[i−2]
+	VFMADD231PD  Z5, Z12, Z11
+	VFMADD231PD  Z6, Z10, Z11         // Z11 = e4[i−2]
+	VMOVUPD      Z11, (DI)
+	VMOVAPD      Z10, Z15
+	VFMADD231PD  Z7, Z11, Z15         // Z15 = o5[i−2]
+	VMOVUPD      Z15, (DI)(R9*1)
+	VMOVAPD      Z10, Z12
+	VMOVAPD      Z8, Z11
+	VMOVAPD      Z9, Z10
+	VMOVAPD      Z13, Z8
+	VMOVAPD      Z14, Z9
+	ADDQ         $32, SI
+	ADDQ         $32, R10
+	ADDQ         $32, R11
+	ADDQ         $32, R12
+	ADDQ         R8, DI
+	DECQ         CX
+	JNZ          f4loop
+
+f4done:
+	VMOVUPD Z8, 0(BX)
+	VMOVUPD Z9, 64(BX)
+	VMOVUPD Z10, 128(BX)
+	VMOVUPD Z11, 192(BX)
+	VMOVUPD Z12, 256(BX)
+	VZEROUPPER
+	RET
+
+// func inverseRun4AVX512(k *pipelined, s *float64, lo, hi *float64, ls, count int, out *float64, os int)
+//
+// The synthesis sweep of inverseRun2AVX2 on four rows at lo + r·ls and
+// hi + r·ls bytes, r < 4, each input gathered from the four rows by one
+// 128-bit load and three VINSERTF32X4.
+TEXT ·inverseRun4AVX512(SB), NOSPLIT, $0-64
+	MOVQ k+0(FP), AX
+	MOVQ s+8(FP), BX
+	MOVQ lo+16(FP), SI
+	MOVQ hi+24(FP), R11
+	MOVQ ls+32(FP), DX
+	MOVQ count+40(FP), CX
+	MOVQ out+48(FP), DI
+	MOVQ os+56(FP), R8
+	VBROADCASTSD 0(AX), Z0
+	VBROADCASTSD 8(AX), Z1
+	VBROADCASTSD 16(AX), Z2
+	VBROADCASTSD 24(AX), Z3
+	VBROADCASTSD 32(AX), Z4
+	VBROADCASTSD 40(AX), Z5
+	VBROADCASTSD 48(AX), Z6
+	VBROADCASTSD 56(AX), Z7
+	VMOVUPD 0(BX), Z8
+	VMOVUPD 64(BX), Z9
+	VMOVUPD 128(BX), Z10
+	VMOVUPD 192(BX), Z11
+	LEAQ (DX)(DX*2), R12
+	TESTQ CX, CX
+	JLE  i4done
+
+i4loop:
+	VMOVUPD      (SI), X12
+	VINSERTF32X4 $1, (SI)(DX*1), Z12, Z12
+	VINSERTF32X4 $2, (SI)(DX*2), Z12, Z12
+	VINSERTF32X4 $3, (SI)(R12*1), Z12, Z12
+	VMOVUPD      (R11), X13
+	VINSERTF32X4 $1, (R11)(DX*1), Z13, Z13
+	VINSERTF32X4 $2, (R11)(DX*2), Z13, Z13
+	VINSERTF32X4 $3, (R11)(R12*1), Z13, Z13
+	VFNMADD231PD Z7, Z12, Z13 // Z13 = o3[i]
+	VFNMADD231PD Z5, Z8, Z12
+	VFNMADD231PD Z6, Z13, Z12 // Z12 = e2[i]
+	VFNMADD231PD Z3, Z9, Z8
+	VFNMADD231PD Z4, Z12, Z8  // Z8 = o1[i−1]
+	VFNMADD231PD Z1, Z10, Z9
+	VFNMADD231PD Z2, Z8, Z9   // Z9 = e[i−1]
+	VMOVUPD      Z11, (DI)
+	VFNMADD231PD Z0, Z9, Z10  // Z10 = o[i−2]
+	VMOVUPD      Z10, (DI)(R8*1)
+	VMOVAPD      Z9, Z11
+	VMOVAPD      Z8, Z10
+	VMOVAPD      Z12, Z9
+	VMOVAPD      Z13, Z8
+	ADDQ         $16, SI
+	ADDQ         $16, R11
+	LEAQ         (DI)(R8*2), DI
+	DECQ         CX
+	JNZ          i4loop
+
+i4done:
+	VMOVUPD Z8, 0(BX)
+	VMOVUPD Z9, 64(BX)
+	VMOVUPD Z10, 128(BX)
+	VMOVUPD Z11, 192(BX)
 	VZEROUPPER
 	RET

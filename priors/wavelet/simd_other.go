@@ -5,6 +5,9 @@ package wavelet
 // simdAvailable is false off amd64: every pass takes the pure-Go kernels.
 const simdAvailable = false
 
+// avx512Available is false off amd64.
+const avx512Available = false
+
 // forwardPairs has no SIMD kernel on this architecture: it does no row.
 func (k *pipelined) forwardPairs(out []float64, os int, x []float64, xs, rows, n int) int { return 0 }
 

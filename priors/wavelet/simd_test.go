@@ -14,6 +14,22 @@ func setSIMD(on bool) func() {
 	return func() { useSIMD = old }
 }
 
+// set512 switches the four-row AVX-512F kernels on or off (where the CPU
+// has them) and returns the function that restores the previous setting.
+func set512(on bool) func() {
+	old := use512
+	use512 = on && avx512Available
+	return func() { use512 = old }
+}
+
+// widths lists the settings of use512 that this CPU can run.
+func widths() []bool {
+	if avx512Available {
+		return []bool{false, true}
+	}
+	return []bool{false}
+}
+
 // needSIMD skips a test that compares the two paths on a CPU without the
 // instructions of the SIMD kernels, where only the pure-Go path exists.
 func needSIMD(t *testing.T) {
@@ -77,24 +93,29 @@ func TestSIMDMatchesPureGo(t *testing.T) {
 			tr.Shrink(shr, x, 0.7)
 			return
 		}
-		fs, is, ss := run(true)
 		fg, ig, sg := run(false)
-		if d := relDiff(fs, fg); d > 1e-13 {
-			t.Errorf("%+v: Forward SIMD vs pure Go: %.3g relative", c, d)
-		}
-		if d := relDiff(is, ig); d > 1e-13 {
-			t.Errorf("%+v: Inverse SIMD vs pure Go: %.3g relative", c, d)
-		}
-		if d := relDiff(ss, sg); d > 1e-13 {
-			t.Errorf("%+v: Shrink SIMD vs pure Go: %.3g relative", c, d)
-		}
-		if d := relDiff(ss, x); d < 1e-2 {
-			t.Errorf("%+v: the threshold barely changes the image (%.3g): a weak case", c, d)
+		for _, w512 := range widths() {
+			restore := set512(w512)
+			fs, is, ss := run(true)
+			restore()
+			if d := relDiff(fs, fg); d > 1e-13 {
+				t.Errorf("%+v avx512=%v: Forward SIMD vs pure Go: %.3g relative", c, w512, d)
+			}
+			if d := relDiff(is, ig); d > 1e-13 {
+				t.Errorf("%+v avx512=%v: Inverse SIMD vs pure Go: %.3g relative", c, w512, d)
+			}
+			if d := relDiff(ss, sg); d > 1e-13 {
+				t.Errorf("%+v avx512=%v: Shrink SIMD vs pure Go: %.3g relative", c, w512, d)
+			}
+			if d := relDiff(ss, x); d < 1e-2 {
+				t.Errorf("%+v: the threshold barely changes the image (%.3g): a weak case", c, d)
+			}
 		}
 	}
 }
 
-// The multi-row passes on 1 … 5 rows (so odd counts with a leftover row),
+// The multi-row passes on 1 … 9 rows (so groups of four, of two and a
+// leftover row, in both widths),
 // padded input strides and strided output equal the scalar kernel row by
 // row (pipelined.forward / inverse, checked against the step-by-step
 // lifting), and write nothing outside the output slots of their rows.
@@ -106,8 +127,16 @@ func TestRowPassesMatchScalarKernel(t *testing.T) {
 	}
 	k := pipelinedFor(liftingFor(fb))
 	rng := rand.New(rand.NewPCG(21, 22))
+	for _, w512 := range widths() {
+		restore := set512(w512)
+		testRowPasses(t, k, rng, w512)
+		restore()
+	}
+}
+
+func testRowPasses(t *testing.T, k *pipelined, rng *rand.Rand, w512 bool) {
 	for _, n := range []int{14, 16, 18, 34, 100, 256} {
-		for _, rows := range []int{1, 2, 3, 4, 5} {
+		for _, rows := range []int{1, 2, 3, 4, 5, 6, 7, 9} {
 			xs := 2*n + 6 // padded row stride of the input (floats)
 			os := 2*rows + 8
 			x := make([]float64, rows*xs)
@@ -127,7 +156,7 @@ func TestRowPassesMatchScalarKernel(t *testing.T) {
 				k.forwardRows(got, os, x, xs, rows, n)
 			}()
 			if d := maxDiff(got, want); d > 1e-13 {
-				t.Errorf("n=%d rows=%d: forwardRows vs forward: %.3g", n, rows, d)
+				t.Errorf("avx512=%v n=%d rows=%d: forwardRows vs forward: %.3g", w512, n, rows, d)
 			}
 			// Synthesis: the output of the analysis, one row per input row.
 			src := make([]float64, rows*xs)
@@ -148,7 +177,7 @@ func TestRowPassesMatchScalarKernel(t *testing.T) {
 				k.inverseRows(got, os, src, xs, rows, n)
 			}()
 			if d := maxDiff(got, want); d > 1e-13 {
-				t.Errorf("n=%d rows=%d: inverseRows vs inverse: %.3g", n, rows, d)
+				t.Errorf("avx512=%v n=%d rows=%d: inverseRows vs inverse: %.3g", w512, n, rows, d)
 			}
 			// And the synthesis of the analysis is the input.
 			var back float64
@@ -159,7 +188,7 @@ func TestRowPassesMatchScalarKernel(t *testing.T) {
 				}
 			}
 			if back > 1e-12 {
-				t.Errorf("n=%d rows=%d: SIMD synthesis of the analysis off by %.3g", n, rows, back)
+				t.Errorf("avx512=%v n=%d rows=%d: SIMD synthesis of the analysis off by %.3g", w512, n, rows, back)
 			}
 		}
 	}
@@ -227,6 +256,18 @@ func TestSIMDNoAllocations(t *testing.T) {
 	}); a != 0 {
 		t.Errorf("SIMD path allocates %.1f times per Forward+Shrink+Inverse", a)
 	}
+}
+
+// The two-row AVX2 kernels alone, for the ratio to the four-row ones.
+func BenchmarkShrink256Db4L4AVX2(b *testing.B) {
+	defer set512(false)()
+	BenchmarkShrink256Db4L4(b)
+}
+
+// The two-row AVX2 kernels alone in BenchmarkForwardInverse256Db4L4.
+func BenchmarkForwardInverse256Db4L4AVX2(b *testing.B) {
+	defer set512(false)()
+	BenchmarkForwardInverse256Db4L4(b)
 }
 
 // The pure-Go path of the benchmarks, for the before/after ratio.
