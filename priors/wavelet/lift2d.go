@@ -119,8 +119,14 @@ func (t *Transform) copyImage(dst []complex128) {
 	}
 }
 
+// scaleInto sets d[i] = f·s[i] for i < len(d), on the SIMD path when it
+// is on.
 func scaleInto(d, s []complex128, f float64) {
 	s = s[:len(d)]
+	if useSIMD {
+		m := scaleSIMD(d, s, f)
+		d, s = d[m:], s[m:]
+	}
 	for i, v := range s {
 		d[i] = complex(f*real(v), f*imag(v))
 	}

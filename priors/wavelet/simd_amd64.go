@@ -58,6 +58,24 @@ func inverseRun4AVX512(k *pipelined, s *float64, lo, hi *float64, ls, count int,
 //go:noescape
 func softThresholdAVX2(x *complex128, n int, thr float64)
 
+// scaleAVX2 sets d[i] = f·s[i] for the first 4·(n/4) complex values
+// (AVX2): the subband scaling of copyOut and copyIn.
+//
+//go:noescape
+func scaleAVX2(d, s *complex128, n int, f float64)
+
+// scaleSIMD scales the longest prefix of s that scaleAVX2 takes into d and
+// returns its length.
+func scaleSIMD(d, s []complex128, f float64) int {
+	m := len(d) &^ 3
+	if m == 0 {
+		return 0
+	}
+	_ = s[m-1]
+	scaleAVX2(&d[0], &s[0], m, f)
+	return m
+}
+
 // forwardRunN runs the w-row analysis kernel.
 func forwardRunN(w int, k *pipelined, s *sweepStateN, x *float64, xs, count int, out *float64, os, hi int) {
 	if w == 4 {

@@ -19,3 +19,6 @@ func (k *pipelined) inversePairs(out []float64, os int, src []float64, ss, rows,
 // softThresholdSIMD has no SIMD kernel on this architecture: it does no
 // element.
 func softThresholdSIMD(x []complex128, thr float64) int { return 0 }
+
+// scaleSIMD has no SIMD kernel on this architecture: it does no element.
+func scaleSIMD(d, s []complex128, f float64) int { return 0 }
