@@ -27,6 +27,11 @@ package fft
 // first store, so a last pass may write over its own input (exec relies on
 // this when a single pass runs in place); the radix-8 twiddled passes read
 // their inputs twice instead and never run in place.
+//
+// On amd64 CPUs with AVX2 and FMA, the radix-4 and radix-8 passes whose runs
+// s are even go through the assembly kernels of simd_amd64.s instead (two
+// complex values per 256-bit register, the same twiddle broadcast over the
+// run); simd.go chooses, and useSIMD switches them off for tests.
 
 const (
 	sin60  = 0.86602540378443864676372317075293618  // sin(π/3)
