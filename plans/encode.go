@@ -106,7 +106,7 @@ func (w *workerState) encodingFor(ci int) (*encoding, error) {
 	if e.step == 0 {
 		// The power iteration is seeded from the candidate, so every
 		// worker finds the same step.
-		l, err := priors.NormalNorm(e.op, 60, 1e-9, seedFor(env.plan.Seed, "norm|"+env.out.Candidates[ci].Key()))
+		l, err := priors.NormalNorm(e.op, 60, 1e-9, seedFor(env.plan.Seed, "norm|"+env.out.Candidates[ci].SeedKey()))
 		if err != nil {
 			return nil, err
 		}

@@ -232,35 +232,57 @@ var buildID = sync.OnceValue(func() string {
 })
 
 // contentKey hashes the JSON encoding of parts, and the binary that computes
-// them, into a short hex key.
+// them, into a short hex key: the identity of a journal entry.
 func contentKey(parts ...any) string {
+	return hashParts(buildID(), parts)
+}
+
+// planKey hashes the JSON encoding of parts alone into a short hex key. Seeds
+// derive from plan keys, never from content keys, so that the random draws
+// are fixed by the plan and stay the same from one build of the program to
+// the next (a rebuilt binary recomputes its journal entries, with the same
+// masks and noise).
+func planKey(parts ...any) string {
+	return hashParts("plan", parts)
+}
+
+func hashParts(prefix string, parts []any) string {
 	h := sha256.New()
-	io.WriteString(h, buildID())
+	io.WriteString(h, prefix)
 	enc := json.NewEncoder(h)
 	for _, p := range parts {
 		if err := enc.Encode(p); err != nil {
-			panic("plans: content key of unencodable value: " + err.Error())
+			panic("plans: key of unencodable value: " + err.Error())
 		}
 	}
 	return hex.EncodeToString(h.Sum(nil)[:12])
 }
 
-// candidateKey identifies a candidate by what fixes its data: the seed, the
+// candidateKeys identify a candidate by what fixes its data: the seed, the
 // object, the noise level, the gradient system (for spirals), the scheme's
-// definition (not its label) and the acceleration.
-func candidateKey(p *Plan, s Scheme, r float64) string {
+// definition (not its label) and the acceleration. The content key (with the
+// binary) names its journal entries, the plan key roots its seeds.
+func candidateKeys(p *Plan, s Scheme, r float64) (content, seed string) {
 	s.Label = ""
 	s.Accelerations = nil
 	s.Interleaves = nil
 	sc := p.Scanner
 	sc.TRms, sc.EchoTrain, sc.Averages = 0, 0, 0 // scan time only
-	return contentKey("candidate", p.Seed, p.Object, p.imageHash, sc, s, r)
+	parts := []any{"candidate", p.Seed, p.Object, p.imageHash, sc, s, r}
+	return contentKey(parts...), planKey(parts...)
 }
 
 // reconKey identifies a reconstruction method by its definition.
 func reconKey(r Recon) string {
 	r.Label = ""
 	return contentKey("recon", r)
+}
+
+// reconSeedKey is the plan key of a reconstruction method, the root of the
+// seeds it draws (the random shifts of cycle spinning).
+func reconSeedKey(r Recon) string {
+	r.Label = ""
+	return planKey("recon", r)
 }
 
 // ErrIncomplete is returned by a run that must not compute (a merge) when

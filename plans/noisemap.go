@@ -155,7 +155,7 @@ func (w *workerState) noiseMap(ctx context.Context, ci, ri, n int) (NoiseMap, er
 	}
 	// The λ of the first scored draw, as the sweep used it.
 	lambda := o.Results[(ci*len(p.Recons)+ri)*p.Repeats].Lambda
-	mean, std, err := w.replicaStd(ctx, enc, o.Candidates[ci].Key(), ri, lambda, n)
+	mean, std, err := w.replicaStd(ctx, enc, o.Candidates[ci].SeedKey(), ri, lambda, n)
 	if err != nil {
 		return m, err
 	}
@@ -203,7 +203,7 @@ func (w *workerState) noiseMap(ctx context.Context, ci, ri, n int) (NoiseMap, er
 		return m, err
 	}
 	fenc := &encoding{op: op, clean: clean, step: 0}
-	_, stdFull, err := w.replicaStd(ctx, fenc, c.Key()+"|full", ri, lambda, n)
+	_, stdFull, err := w.replicaStd(ctx, fenc, c.SeedKey()+"|full", ri, lambda, n)
 	if err != nil {
 		return m, err
 	}

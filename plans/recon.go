@@ -47,7 +47,7 @@ func (w *workerState) solverFor(ri int) (*solver, error) {
 		}
 		s.prior = p
 		if rc.CycleSpinning {
-			seed := seedFor(w.env.plan.Seed, "cycle-spin|"+reconKey(rc))
+			seed := seedFor(w.env.plan.Seed, "cycle-spin|"+reconSeedKey(rc))
 			if s.spin, err = priors.NewWaveletCycleSpin(p, seed, seed^0x9e3779b97f4a7c15); err != nil {
 				return nil, fmt.Errorf("recon %q: %w", rc.Label, err)
 			}

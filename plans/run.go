@@ -27,7 +27,8 @@ type Candidate struct {
 	Sampling trajectories.Sampling
 	ScanTime float64 // seconds
 	MaskSeed uint64
-	key      string
+	key      string // journal identity, see candidateKeys
+	seedKey  string // root of the seeds, see candidateKeys
 	// PF describes the partial-Fourier cut of the sampling, if any.
 	PF trajectories.PFInfo
 	// Budget breaks ScanTime down.
@@ -42,9 +43,14 @@ type Candidate struct {
 	SideLobe float64
 }
 
-// Key identifies the candidate by content (see candidateKey); seeds derive
-// from it.
+// Key identifies the candidate by content and by the binary that computes it
+// (see candidateKeys): the root of its journal entries.
 func (c Candidate) Key() string { return c.key }
+
+// SeedKey identifies the candidate by the plan's content alone (see
+// candidateKeys): the root of its mask and noise seeds, which therefore do
+// not change when the program is rebuilt.
+func (c Candidate) SeedKey() string { return c.seedKey }
 
 // Result is the outcome of one reconstruction of one noise draw.
 type Result struct {
@@ -158,8 +164,9 @@ func Candidates(p *Plan) ([]Candidate, error) {
 	var out []Candidate
 	for si, s := range p.Schemes {
 		for ai, r := range s.Accelerations {
-			c := Candidate{Scheme: si, Accel: ai, AskedR: r, key: candidateKey(p, s, r)}
-			c.MaskSeed = seedFor(p.Seed, "mask|"+c.key)
+			c := Candidate{Scheme: si, Accel: ai, AskedR: r}
+			c.key, c.seedKey = candidateKeys(p, s, r)
+			c.MaskSeed = seedFor(p.Seed, "mask|"+c.seedKey)
 			var err error
 			switch s.Pattern {
 			case PatternUniform:
@@ -660,7 +667,7 @@ func (w *workerState) draw(ci int, key string) (*encoding, []complex128, uint64,
 	if err != nil {
 		return nil, nil, 0, err
 	}
-	seed := seedFor(w.env.plan.Seed, "noise|"+w.env.out.Candidates[ci].Key()+"|"+key)
+	seed := seedFor(w.env.plan.Seed, "noise|"+w.env.out.Candidates[ci].SeedKey()+"|"+key)
 	rng := rand.New(rand.NewPCG(seed, seed^0x5851f42d4c957f2d))
 	y := make([]complex128, len(e.clean))
 	copy(y, e.clean)
