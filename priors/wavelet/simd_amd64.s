@@ -155,11 +155,12 @@ idone:
 // func softThresholdAVX2(x *complex128, n int, thr float64)
 //
 // The complex soft threshold (Donoho 1995) of n complex values, n a
-// multiple of 4, in place: per four values, the squared moduli by VMULPD
-// and VHADDPD (lanes m0, m2, m1, m3), |c| by VSQRTPD, s = max(1 − thr/|c|, 0)
-// by VDIVPD, VSUBPD and VMAXPD (a NaN from 0/0 becomes 0), and the
-// products c·s after VUNPCKLPD / VUNPCKHPD spread s back over the pairs.
-// The operations and their rounding are those of SoftThreshold.
+// multiple of 4, in place: per four values, the squared moduli m2 by VMULPD
+// and VHADDPD (lanes m0, m2, m1, m3), |c| by VSQRTPD, s = 1 − thr/|c| by
+// VDIVPD and VSUBPD, and the products c·s after VUNPCKLPD / VUNPCKHPD spread
+// s back over the pairs, cleared (VANDPD) where m2 ≤ thr², SoftThreshold's
+// test. The operations, their rounding and the results on zeros,
+// infinities and NaN are those of SoftThreshold.
 TEXT ·softThresholdAVX2(SB), NOSPLIT, $0-24
 	MOVQ         x+0(FP), SI
 	MOVQ         n+8(FP), CX
@@ -167,7 +168,7 @@ TEXT ·softThresholdAVX2(SB), NOSPLIT, $0-24
 	MOVQ         $0x3ff0000000000000, AX
 	MOVQ         AX, X14
 	VBROADCASTSD X14, Y14
-	VXORPD       Y13, Y13, Y13
+	VMULPD       Y15, Y15, Y13
 	SHRQ         $2, CX
 	JZ           tdone
 
@@ -177,14 +178,18 @@ tloop:
 	VMULPD    Y0, Y0, Y2
 	VMULPD    Y1, Y1, Y3
 	VHADDPD   Y3, Y2, Y2
+	VCMPPD    $0x16, Y13, Y2, Y5 // keep: m2 > thr² or unordered (NLE_UQ)
 	VSQRTPD   Y2, Y2
 	VDIVPD    Y2, Y15, Y2
 	VSUBPD    Y2, Y14, Y2
-	VMAXPD    Y13, Y2, Y2
 	VUNPCKLPD Y2, Y2, Y3
 	VUNPCKHPD Y2, Y2, Y4
+	VUNPCKLPD Y5, Y5, Y6
+	VUNPCKHPD Y5, Y5, Y7
 	VMULPD    Y3, Y0, Y0
 	VMULPD    Y4, Y1, Y1
+	VANDPD    Y6, Y0, Y0
+	VANDPD    Y7, Y1, Y1
 	VMOVUPD   Y0, (SI)
 	VMOVUPD   Y1, 32(SI)
 	ADDQ      $64, SI

@@ -195,19 +195,21 @@ func testRowPasses(t *testing.T, k *pipelined, rng *rand.Rand, w512 bool) {
 }
 
 // The SIMD soft threshold equals SoftThreshold (Donoho 1995; checked
-// against hand values in TestSoftThreshold) on every length, including
-// the scalar tail, zeros, values at the threshold, infinities and a zero
-// threshold.
+// against hand values in TestSoftThreshold) to 1e-15·|c|, on
+// every length, including the scalar tail, zeros, values at the threshold,
+// infinities, subnormal and huge moduli, NaN and a zero threshold.
 func TestSoftThresholdSIMDMatchesScalar(t *testing.T) {
 	needSIMD(t)
 	rng := rand.New(rand.NewPCG(31, 32))
-	special := []complex128{0, 1, -1i, complex(0.6, 0.8), complex(math.Inf(1), 0), complex(3, math.Inf(-1)), complex(-2, 5)}
-	for _, thr := range []float64{0, 0.5, 1, 3} {
+	special := []complex128{0, 1, -1i, complex(0.6, 0.8), complex(math.Inf(1), 0), complex(3, math.Inf(-1)),
+		complex(-2, 5), complex(3e-310, -1e-310), complex(1e200, -3e199), complex(math.NaN(), 1), 5e-160}
+	defer setSIMD(true)()
+	for _, thr := range []float64{0, 1e-300, 0.5, 1, 3, math.Inf(1)} {
 		for n := range 23 {
 			x := make([]complex128, n)
 			for i := range x {
 				if i < len(special) && n%2 == 1 {
-					x[i] = special[i]
+					x[i] = special[(i+n)%len(special)]
 				} else {
 					x[i] = complex(rng.NormFloat64(), rng.NormFloat64())
 				}
@@ -215,20 +217,24 @@ func TestSoftThresholdSIMDMatchesScalar(t *testing.T) {
 			want := append([]complex128(nil), x...)
 			SoftThreshold(want, thr)
 			got := append([]complex128(nil), x...)
-			func() {
-				defer setSIMD(true)()
-				softThreshold(got, thr)
-			}()
+			softThreshold(got, thr)
 			for i := range got {
-				dr := math.Abs(real(got[i]) - real(want[i]))
-				di := math.Abs(imag(got[i]) - imag(want[i]))
-				same := (dr <= 1e-15 || real(got[i]) == real(want[i])) && (di <= 1e-15 || imag(got[i]) == imag(want[i]))
-				if !same {
+				tol := 1e-15 * math.Hypot(real(x[i]), imag(x[i]))
+				if !closeOrSame(real(got[i]), real(want[i]), tol) || !closeOrSame(imag(got[i]), imag(want[i]), tol) {
 					t.Errorf("thr=%g n=%d: soft(%v) = %v on the SIMD path, %v in pure Go", thr, n, x[i], got[i], want[i])
 				}
 			}
 		}
 	}
+}
+
+// closeOrSame reports whether a and b are within tol, or both the same
+// infinity, or both NaN.
+func closeOrSame(a, b, tol float64) bool {
+	if math.IsNaN(a) || math.IsNaN(b) {
+		return math.IsNaN(a) && math.IsNaN(b)
+	}
+	return a == b || math.Abs(a-b) <= tol
 }
 
 // The pure-Go path on its own against the PyWavelets fixtures, on a CPU
