@@ -1,17 +1,17 @@
 package wavelet
 
 // Multi-row passes: the SIMD kernels of simd_amd64.s run the pipelined db4
-// sweep on two (AVX2) or four (AVX-512F) adjacent rows at once. Because every pass writes its output
-// transposed (row r of the input becomes column r of the output, lift2d.go),
-// the outputs of rows r, r+1, … are adjacent complex slots, so one 256-bit
-// (512-bit) register holds one complex value of each row, one store writes
-// them all, and
-// the lifting steps are FMAs with broadcast coefficients and no dependence
-// between the lanes. A leftover row, and every row where the CPU lacks the
-// instructions, takes the pure-Go kernel of pipelined.go.
+// sweep on two (AVX2) or four (AVX-512F) adjacent rows at once. Because
+// every pass writes its output transposed (row r of the input becomes
+// column r of the output, lift2d.go), the outputs of rows r, r+1, … are
+// adjacent complex slots, so one 256-bit (512-bit) register holds one
+// complex value of each row, one store writes them all, and the lifting
+// steps are FMAs with broadcast coefficients and no dependence between the
+// lanes. A leftover row, and every row where the CPU lacks the
+// instructions (or off amd64), takes the pure-Go kernel of pipelined.go.
 
-// useSIMD selects the assembly kernels (pipelined row pairs and the complex
-// soft threshold). It starts as simdAvailable; tests switch it off to run
+// useSIMD selects the assembly kernels (the multi-row db4 passes, the
+// complex soft threshold and the subband scaling). It starts as simdAvailable; tests switch it off to run
 // the pure-Go path and compare.
 var useSIMD = simdAvailable
 
