@@ -56,6 +56,45 @@ func (t *Transform) liftAnalyse(in []float64, inStride int) {
 	}
 }
 
+// liftAnalyseShrink is liftAnalyse followed by shrinkLevel(thr, l) on every
+// level l (the soft threshold of the detail bands at thr/|D_b|). Where the
+// four-row kernel can run a column pass (pipelined.fusedShrink), it
+// soft-thresholds the detail bands that the pass completes as it writes
+// them, which saves a pass over t.ub; the other levels, and a pass whose
+// kernel reports a value it does not threshold exactly (infinite, NaN or
+// subnormal moduli), take the separate pass.
+func (t *Transform) liftAnalyseShrink(in []float64, inStride int, thr float64) {
+	tb, ub := floats(t.tb), floats(t.ub)
+	ts, us := 2*t.ts, 2*t.us
+	pk, _ := t.kern.(*pipelined)
+	rows, stride := in, inStride
+	for l := range t.levels {
+		h, w := t.ny>>l, t.nx>>l
+		t.kern.forwardRows(tb, ts, rows, stride, h, w)
+		rows, stride = ub, us
+		if pk != nil && pk.fusedShrink(w, h) {
+			// Columns j < w/2: low-pass is the approximation (kept,
+			// threshold 0), high-pass DetailY; j ≥ w/2: DetailX, DetailXY.
+			thrs := [4]float64{0, thr / t.bandScale(l+1, DetailY), thr / t.bandScale(l+1, DetailX), thr / t.bandScale(l+1, DetailXY)}
+			if pk.forwardShrinkRows(ub, us, tb, ts, w, h, &thrs) {
+				continue
+			}
+		}
+		t.kern.forwardRows(ub, us, tb, ts, w, h)
+		t.shrinkLevel(thr, l+1)
+	}
+}
+
+// bandScale returns |D_b| of the band of the given level and kind.
+func (t *Transform) bandScale(level int, kind BandKind) float64 {
+	for i, b := range t.bands {
+		if b.Level == level && b.Kind == kind {
+			return abs(t.scale[i])
+		}
+	}
+	panic("wavelet: no such band")
+}
+
 // liftSynthesise inverts liftAnalyse in place in t.ub.
 func (t *Transform) liftSynthesise() {
 	tb, ub := floats(t.tb), floats(t.ub)
@@ -132,10 +171,11 @@ func scaleInto(d, s []complex128, f float64) {
 	}
 }
 
-// shrinkWork soft-thresholds the detail bands of t.ub at thr/|D_b|.
-func (t *Transform) shrinkWork(thr float64) {
+// shrinkLevel soft-thresholds the detail bands of the given level of t.ub
+// at thr/|D_b|.
+func (t *Transform) shrinkLevel(thr float64, level int) {
 	for i, b := range t.bands {
-		if b.Kind == Approx {
+		if b.Kind == Approx || b.Level != level {
 			continue
 		}
 		tb := thr / abs(t.scale[i])

@@ -24,8 +24,7 @@ func (t *Transform) Shrink(dst, src []complex128, thr float64) {
 		t.Inverse(dst, dst)
 		return
 	}
-	t.liftAnalyse(floats(src), 2*t.nx)
-	t.shrinkWork(thr)
+	t.liftAnalyseShrink(floats(src), 2*t.nx, thr)
 	t.liftSynthesise()
 	t.copyImage(dst)
 }

@@ -50,6 +50,15 @@ func forwardRun4AVX512(k *pipelined, s *float64, x *float64, xs, count int, out 
 //go:noescape
 func inverseRun4AVX512(k *pipelined, s *float64, lo, hi *float64, ls, count int, out *float64, os int)
 
+// forwardRun4ShrinkAVX512 is forwardRun4AVX512 that soft-thresholds the
+// low-pass outputs at thr[0] and the high-pass ones at thr[1] before it
+// stores them (Donoho 1995), with a reciprocal square root and Newton steps
+// instead of the divider. It returns non-zero when a kept value had a
+// factor that is not finite; the outputs are then not to be used.
+//
+//go:noescape
+func forwardRun4ShrinkAVX512(k *pipelined, s *float64, x *float64, xs, count int, out *float64, os, hi int, thr *[2]float64) int
+
 // softThresholdAVX2 applies the complex soft threshold of SoftThreshold to
 // the first 4·(n/4) complex values at x, four at a time: |c| by VSQRTPD,
 // the factor 1 − thr/|c| by VDIVPD, the values with |c| ≤ thr cleared
@@ -193,4 +202,47 @@ func softThresholdSIMD(x []complex128, thr float64) int {
 	}
 	softThresholdAVX2(&x[0], m, thr)
 	return m
+}
+
+// fusedShrink reports whether forwardShrinkRows can run a column pass of
+// w rows of n samples: the four-row kernel on every row, with the groups
+// of four falling on one side of w/2.
+func (k *pipelined) fusedShrink(w, n int) bool {
+	return useSIMD && use512 && n >= 8 && w%8 == 0
+}
+
+// forwardShrinkRows is forwardRows on the w rows of a column pass
+// (fusedShrink must hold) that soft-thresholds the outputs as it writes
+// them: rows r < w/2 at thr[0] (low-pass) and thr[1] (high-pass), rows
+// r ≥ w/2 at thr[2] and thr[3]. It reports false when the kernel met a
+// value it does not threshold exactly (see forwardRun4ShrinkAVX512); the
+// outputs are then to be computed again on the exact path.
+func (k *pipelined) forwardShrinkRows(out []float64, os int, x []float64, xs, w, n int, thr *[4]float64) bool {
+	n2 := n / 2
+	hi := n2 * os
+	groups := w / 4
+	_ = x[(w-1)*xs+2*n-1]
+	_ = out[2*w-1+hi+(n2-1)*os]
+	var s sweepStateN
+	var junk [8]float64
+	b, bo, bh := 8*xs, 8*os, 8*hi
+	bad := 0
+	for g := range groups {
+		y := x[g*4*xs:]
+		o := out[8*g:]
+		t := (*[2]float64)(thr[0:2])
+		if 4*g >= w/2 {
+			t = (*[2]float64)(thr[2:4])
+		}
+		s = sweepStateN{}
+		for r := range 4 {
+			copy(s[2*r:2*r+2], y[r*xs+2*n-8:r*xs+2*n-6])
+			copy(s[8+2*r:8+2*r+2], y[r*xs+2*n-6:r*xs+2*n-4])
+		}
+		forwardRun4AVX512(k, &s[0], &y[2*n-4], b, 1, &junk[0], 0, 0)
+		forwardRun4AVX512(k, &s[0], &y[0], b, 2, &junk[0], 0, 0)
+		bad |= forwardRun4ShrinkAVX512(k, &s[0], &y[8], b, n2-2, &o[0], bo, bh, t)
+		bad |= forwardRun4ShrinkAVX512(k, &s[0], &y[0], b, 2, &o[(n2-2)*os], bo, bh, t)
+	}
+	return bad == 0
 }

@@ -374,3 +374,130 @@ sloop:
 sdone:
 	VZEROUPPER
 	RET
+
+// func forwardRun4ShrinkAVX512(k *pipelined, s *float64, x *float64, xs, count int, out *float64, os, hi int, thr *[2]float64) int
+//
+// forwardRun4AVX512 that soft-thresholds its outputs before it stores them
+// (Donoho 1995): the low-pass ones at thr[0], the high-pass ones at thr[1]
+// (a threshold 0 keeps a value as it is). The eight squared moduli of a
+// sweep are packed into one register by VUNPCKLPD / VUNPCKHPD (low-pass and
+// high-pass alternating), 1/|c| comes from VRSQRT14PD (relative error
+// ≤ 2⁻¹⁴) and two Newton-Raphson steps y ← y·(3/2 − (m2/2)·y²), the factor
+// is s = 1 − thr·y, and a value is cleared where m2 ≤ thr², the test of
+// SoftThreshold. It returns non-zero when some kept value had a factor
+// that is not finite (an infinite, NaN or subnormal m2), for which the
+// caller redoes the pass on the exact path.
+TEXT ·forwardRun4ShrinkAVX512(SB), NOSPLIT, $0-80
+	MOVQ k+0(FP), AX
+	MOVQ s+8(FP), BX
+	MOVQ x+16(FP), SI
+	MOVQ xs+24(FP), DX
+	MOVQ count+32(FP), CX
+	MOVQ out+40(FP), DI
+	MOVQ os+48(FP), R8
+	MOVQ hi+56(FP), R9
+	MOVQ thr+64(FP), R13
+	VBROADCASTSD 0(AX), Z0
+	VBROADCASTSD 8(AX), Z1
+	VBROADCASTSD 16(AX), Z2
+	VBROADCASTSD 24(AX), Z3
+	VBROADCASTSD 32(AX), Z4
+	VBROADCASTSD 40(AX), Z5
+	VBROADCASTSD 48(AX), Z6
+	VBROADCASTSD 56(AX), Z7
+	VBROADCASTSD 0(R13), Z20
+	VBROADCASTSD 8(R13), Z21
+	VUNPCKLPD    Z21, Z20, Z20 // thresholds, low and high alternating
+	VMULPD       Z20, Z20, Z21 // their squares
+	MOVQ         $0x3ff0000000000000, AX
+	VPBROADCASTQ AX, Z22       // 1
+	MOVQ         $0x3ff8000000000000, AX
+	VPBROADCASTQ AX, Z23       // 3/2
+	MOVQ         $0x3fe0000000000000, AX
+	VPBROADCASTQ AX, Z24       // 1/2
+	VPTERNLOGQ   $0xff, Z25, Z25, Z25 // all bits set
+	KXORW        K4, K4, K4
+	VMOVUPD 0(BX), Z8
+	VMOVUPD 64(BX), Z9
+	VMOVUPD 128(BX), Z10
+	VMOVUPD 192(BX), Z11
+	VMOVUPD 256(BX), Z12
+	LEAQ (SI)(DX*1), R10
+	LEAQ (SI)(DX*2), R11
+	LEAQ (R11)(DX*1), R12
+	TESTQ CX, CX
+	JLE  f4sdone
+
+f4sloop:
+	VMOVUPD      (SI), X13
+	VINSERTF32X4 $1, (R10), Z13, Z13
+	VINSERTF32X4 $2, (R11), Z13, Z13
+	VINSERTF32X4 $3, (R12), Z13, Z13 // e[i]
+	VMOVUPD      16(SI), X14
+	VINSERTF32X4 $1, 16(R10), Z14, Z14
+	VINSERTF32X4 $2, 16(R11), Z14, Z14
+	VINSERTF32X4 $3, 16(R12), Z14, Z14 // o[i]
+	VFMADD231PD  Z0, Z13, Z9           // Z9 = o1[i−1]
+	VFMADD231PD  Z1, Z10, Z8
+	VFMADD231PD  Z2, Z9, Z8            // Z8 = e2[i−1]
+	VFMADD231PD  Z3, Z11, Z10
+	VFMADD231PD  Z4, Z8, Z10           // Z10 = o3[i−2]
+	VFMADD231PD  Z5, Z12, Z11
+	VFMADD231PD  Z6, Z10, Z11          // Z11 = e4[i−2]
+	VMOVAPD      Z10, Z15
+	VFMADD231PD  Z7, Z11, Z15          // Z15 = o5[i−2]
+
+	// Soft threshold of Z11 (low) and Z15 (high).
+	VMULPD       Z11, Z11, Z16
+	VMULPD       Z15, Z15, Z17
+	VUNPCKLPD    Z17, Z16, Z18
+	VUNPCKHPD    Z17, Z16, Z19
+	VADDPD       Z19, Z18, Z18        // m2: low 0, high 0, low 1, …
+	VCMPPD       $0x16, Z21, Z18, K1  // keep: m2 > thr² or unordered (NLE_UQ)
+	VRSQRT14PD   Z18, Z16
+	VMULPD       Z24, Z18, Z17        // m2/2
+	VMULPD       Z16, Z16, Z19
+	VFNMADD213PD Z23, Z17, Z19
+	VMULPD       Z19, Z16, Z16        // first Newton step
+	VMULPD       Z16, Z16, Z19
+	VFNMADD213PD Z23, Z17, Z19
+	VMULPD       Z19, Z16, Z16        // second Newton step
+	VFNMADD213PD Z22, Z20, Z16        // s = 1 − thr·y
+	VSUBPD       Z16, Z16, Z17        // NaN where s is not finite
+	VCMPPD       $3, Z17, Z17, K1, K3
+	KORW         K3, K4, K4
+	VMOVDQA64.Z  Z25, K1, Z17         // keep mask as a vector
+	VUNPCKLPD    Z16, Z16, Z18        // s of the low outputs
+	VUNPCKHPD    Z16, Z16, Z19        // s of the high outputs
+	VMULPD       Z18, Z11, Z26
+	VMULPD       Z19, Z15, Z27
+	VUNPCKLPD    Z17, Z17, Z18
+	VUNPCKHPD    Z17, Z17, Z19
+	VPANDQ       Z18, Z26, Z26
+	VPANDQ       Z19, Z27, Z27
+	VMOVUPD      Z26, (DI)
+	VMOVUPD      Z27, (DI)(R9*1)
+
+	VMOVAPD      Z10, Z12
+	VMOVAPD      Z8, Z11
+	VMOVAPD      Z9, Z10
+	VMOVAPD      Z13, Z8
+	VMOVAPD      Z14, Z9
+	ADDQ         $32, SI
+	ADDQ         $32, R10
+	ADDQ         $32, R11
+	ADDQ         $32, R12
+	ADDQ         R8, DI
+	DECQ         CX
+	JNZ          f4sloop
+
+f4sdone:
+	VMOVUPD Z8, 0(BX)
+	VMOVUPD Z9, 64(BX)
+	VMOVUPD Z10, 128(BX)
+	VMOVUPD Z11, 192(BX)
+	VMOVUPD Z12, 256(BX)
+	KMOVW   K4, AX
+	MOVQ    AX, ret+72(FP)
+	VZEROUPPER
+	RET

@@ -22,3 +22,11 @@ func softThresholdSIMD(x []complex128, thr float64) int { return 0 }
 
 // scaleSIMD has no SIMD kernel on this architecture: it does no element.
 func scaleSIMD(d, s []complex128, f float64) int { return 0 }
+
+// fusedShrink is false off amd64: Shrink thresholds in a pass of its own.
+func (k *pipelined) fusedShrink(w, n int) bool { return false }
+
+// forwardShrinkRows is never called off amd64 (fusedShrink is false).
+func (k *pipelined) forwardShrinkRows(out []float64, os int, x []float64, xs, w, n int, thr *[4]float64) bool {
+	return false
+}

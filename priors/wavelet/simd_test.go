@@ -237,6 +237,60 @@ func closeOrSame(a, b, tol float64) bool {
 	return a == b || math.Abs(a-b) <= tol
 }
 
+// Shrink on images whose coefficients have subnormal squared moduli (|c| ≈
+// 1e-160, the threshold below them), infinite ones and NaN, where the
+// fused four-row kernel declines its outputs and the pass is redone on the
+// exact path: the same result as the pure-Go path (to 1e-13 relative, or
+// the same infinities and NaN).
+func TestShrinkSIMDExtremeValues(t *testing.T) {
+	needSIMD(t)
+	tr, err := New(64, 64, 3, "db4")
+	if err != nil {
+		t.Fatal(err)
+	}
+	tiny := randImage(tr.Len(), 901)
+	for i := range tiny {
+		tiny[i] *= 1e-160
+	}
+	inf := randImage(tr.Len(), 902)
+	inf[1000] = complex(math.Inf(1), 0)
+	nan := randImage(tr.Len(), 903)
+	nan[77] = complex(0, math.NaN())
+	for _, c := range []struct {
+		name string
+		x    []complex128
+		thr  float64
+	}{{"subnormal", tiny, 3e-161}, {"infinity", inf, 0.5}, {"NaN", nan, 0.5}} {
+		want := make([]complex128, len(c.x))
+		func() {
+			defer setSIMD(false)()
+			tr.Shrink(want, c.x, c.thr)
+		}()
+		for _, w512 := range widths() {
+			restore := set512(w512)
+			got := make([]complex128, len(c.x))
+			tr.Shrink(got, c.x, c.thr)
+			restore()
+			var m float64
+			for i := range want {
+				m = math.Max(m, math.Max(math.Abs(real(want[i])), math.Abs(imag(want[i]))))
+			}
+			if m == 0 {
+				t.Fatalf("%s: the pure-Go Shrink is zero: a weak case", c.name)
+			}
+			bad := 0
+			for i := range got {
+				if !closeOrSame(real(got[i]), real(want[i]), 1e-13*m) || !closeOrSame(imag(got[i]), imag(want[i]), 1e-13*m) {
+					bad++
+				}
+			}
+			if bad > 0 {
+				t.Errorf("%s avx512=%v: %d values differ from the pure-Go Shrink", c.name, w512, bad)
+			}
+		}
+	}
+}
+
 // The pure-Go path on its own against the PyWavelets fixtures, on a CPU
 // where the other tests take the SIMD path.
 func TestPureGoPathAgainstPyWavelets(t *testing.T) {
