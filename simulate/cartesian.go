@@ -122,6 +122,10 @@ func (c *Cartesian) Normal(dst, src []complex128) {
 	c.plan.CentredInverse(dst, c.grid)
 }
 
+// OrthonormalRows reports true: E = M·F with F unitary and M a selection of
+// distinct samples, so E·Eᴴ = M·Mᵀ = I.
+func (c *Cartesian) OrthonormalRows() bool { return true }
+
 // Gather picks the acquired samples out of a full centred k-space grid.
 func (c *Cartesian) Gather(dst, grid []complex128) {
 	for j, i := range c.index {

@@ -38,6 +38,16 @@ type NormalOperator interface {
 	Normal(dst, src []complex128) // image -> image, EᴴE·src
 }
 
+// OrthonormalRows is a NormalOperator that can report E·Eᴴ = I: its rows are
+// orthonormal, as for a selection of samples of a unitary DFT. Eᴴ then maps
+// the data space isometrically into the image space, so a solver may keep a
+// data-space vector q as the image Eᴴq (and recover q = E·Eᴴq), trading a
+// Forward and an Adjoint per iteration for one Normal.
+type OrthonormalRows interface {
+	NormalOperator
+	OrthonormalRows() bool // reports whether E·Eᴴ = I holds
+}
+
 // Phantom is an object known in closed form, so that measured data are drawn
 // from its exact spectrum and never from the FFT of the grid that is
 // reconstructed on (which would commit the inverse crime).
