@@ -10,6 +10,7 @@ import (
 	"strings"
 	"testing"
 
+	"accelplan/internal/benchcpu"
 	"accelplan/simulate"
 )
 
@@ -242,7 +243,7 @@ func BenchmarkFISTAIteration256(b *testing.B) {
 			opt := FISTAOptions{Step: 1, MaxIter: iters}
 			var x []complex128
 			b.ReportAllocs()
-			done := cpuTimer(b)
+			done := benchcpu.Timer(b)
 			for b.Loop() {
 				x, _, err = FISTA(p.op, p.data, prior, 0.002, opt)
 				if err != nil {
@@ -283,7 +284,7 @@ func BenchmarkTVPDHGIteration256(b *testing.B) {
 	}
 	x := make([]complex128, n*n)
 	b.ReportAllocs()
-	done := cpuTimer(b)
+	done := benchcpu.Timer(b)
 	for b.Loop() {
 		op.Adjoint(x, f.data)
 		if _, err := s.Solve(x, f.data, 0.005, PDHGOptions{MaxIter: iters}); err != nil {

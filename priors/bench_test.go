@@ -5,6 +5,7 @@ import (
 	"math/rand/v2"
 	"testing"
 
+	"accelplan/internal/benchcpu"
 	"accelplan/simulate"
 )
 
@@ -42,7 +43,7 @@ func BenchmarkFISTAIteration256Db4(b *testing.B) {
 	const iters = 10
 	opt := FISTAOptions{Step: 1, MaxIter: iters}
 	b.ReportAllocs()
-	done := cpuTimer(b)
+	done := benchcpu.Timer(b)
 	for b.Loop() {
 		if _, _, err := FISTA(op, y, prior, 0.002, opt); err != nil {
 			b.Fatal(err)
@@ -56,7 +57,7 @@ func BenchmarkFISTAIteration256Db4(b *testing.B) {
 func BenchmarkCartesianForwardAdjoint256(b *testing.B) {
 	op, y, _ := benchProblem(b)
 	x := make([]complex128, op.ImageLen())
-	done := cpuTimer(b)
+	done := benchcpu.Timer(b)
 	for b.Loop() {
 		op.Forward(y, x)
 		op.Adjoint(x, y)
@@ -70,7 +71,7 @@ func BenchmarkCartesianNormal256(b *testing.B) {
 	op, _, _ := benchProblem(b)
 	x := randVec(op.ImageLen(), 4)
 	g := make([]complex128, op.ImageLen())
-	done := cpuTimer(b)
+	done := benchcpu.Timer(b)
 	for b.Loop() {
 		op.Normal(g, x)
 	}
@@ -81,7 +82,7 @@ func BenchmarkCartesianNormal256(b *testing.B) {
 func BenchmarkWaveletL1Prox256Db4(b *testing.B) {
 	_, _, prior := benchProblem(b)
 	x := randVec(256*256, 3)
-	done := cpuTimer(b)
+	done := benchcpu.Timer(b)
 	for b.Loop() {
 		prior.Prox(x, x, 1e-3)
 	}

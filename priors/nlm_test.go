@@ -12,6 +12,7 @@ import (
 	"sync"
 	"testing"
 
+	"accelplan/internal/benchcpu"
 	"accelplan/simulate/quality"
 )
 
@@ -465,7 +466,7 @@ func BenchmarkNLM256(b *testing.B) {
 			src := nlmBenchImage()
 			dst := make([]complex128, len(src))
 			b.ReportAllocs()
-			done := cpuTimer(b)
+			done := benchcpu.Timer(b)
 			for b.Loop() {
 				d.Denoise(dst, src, 0.05)
 			}

@@ -7,6 +7,7 @@ import (
 	"strings"
 	"testing"
 
+	"accelplan/internal/benchcpu"
 	"accelplan/simulate"
 	"accelplan/simulate/quality"
 )
@@ -347,7 +348,7 @@ func BenchmarkPnPADMMIteration256(b *testing.B) {
 			x := make([]complex128, len(zf))
 			const iters = 20
 			b.ReportAllocs()
-			done := cpuTimer(b)
+			done := benchcpu.Timer(b)
 			for b.Loop() {
 				copy(x, zf)
 				if _, err := p.Solve(x, y, 0.05*MaxAbs(zf), PnPADMMOptions{MaxIter: iters, Rho: 0.2}); err != nil {
@@ -371,7 +372,7 @@ func BenchmarkPnPFISTAIteration256(b *testing.B) {
 			x := make([]complex128, len(zf))
 			const iters = 20
 			b.ReportAllocs()
-			done := cpuTimer(b)
+			done := benchcpu.Timer(b)
 			for b.Loop() {
 				copy(x, zf)
 				if _, err := p.Solve(x, y, 0.02*MaxAbs(zf), PnPFISTAOptions{MaxIter: iters, Step: 1}); err != nil {

@@ -8,6 +8,7 @@ import (
 	"strings"
 	"testing"
 
+	"accelplan/internal/benchcpu"
 	"accelplan/simulate"
 )
 
@@ -209,7 +210,7 @@ func BenchmarkREDIteration256(b *testing.B) {
 				x := make([]complex128, len(zf))
 				const iters = 20
 				b.ReportAllocs()
-				done := cpuTimer(b)
+				done := benchcpu.Timer(b)
 				for b.Loop() {
 					copy(x, zf)
 					if _, err := r.Solve(x, y, 0.1, 0.02*MaxAbs(zf), REDOptions{Update: u, MaxIter: iters}); err != nil {

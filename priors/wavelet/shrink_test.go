@@ -4,6 +4,8 @@ import (
 	"math"
 	"math/cmplx"
 	"testing"
+
+	"accelplan/internal/benchcpu"
 )
 
 // Shrink against PyWavelets: wavedec2 of the real and imaginary parts,
@@ -118,7 +120,7 @@ func BenchmarkShrink256Db4L4(b *testing.B) {
 	x := randImage(tr.Len(), 1)
 	y := make([]complex128, len(x))
 	b.ReportAllocs()
-	done := cpuTimer(b)
+	done := benchcpu.Timer(b)
 	for b.Loop() {
 		tr.Shrink(y, x, 0.5)
 	}
@@ -136,7 +138,7 @@ func BenchmarkForwardInverse256Db4L4Direct(b *testing.B) {
 	x := randImage(tr.Len(), 1)
 	w := make([]complex128, len(x))
 	b.ReportAllocs()
-	done := cpuTimer(b)
+	done := benchcpu.Timer(b)
 	for b.Loop() {
 		tr.Forward(w, x)
 		tr.Inverse(x, w)

@@ -8,6 +8,8 @@ import (
 	"os"
 	"strings"
 	"testing"
+
+	"accelplan/internal/benchcpu"
 )
 
 // fixture mirrors testdata/wavelet_fixture.json, written by
@@ -521,7 +523,7 @@ func BenchmarkForwardInverse256Db4L4(b *testing.B) {
 	x := randImage(tr.Len(), 1)
 	w := make([]complex128, len(x))
 	b.ReportAllocs()
-	done := cpuTimer(b)
+	done := benchcpu.Timer(b)
 	for b.Loop() {
 		tr.Forward(w, x)
 		tr.Inverse(x, w)

@@ -3,6 +3,8 @@ package fft
 import (
 	"math/rand/v2"
 	"testing"
+
+	"accelplan/internal/benchcpu"
 )
 
 // benchPaths runs f as sub-benchmarks "simd" (the AVX2 kernels, where the
@@ -17,7 +19,7 @@ func benchPaths(b *testing.B, f func()) {
 				b.Skip("CPU without AVX2+FMA")
 			}
 			withSIMD(c.on, func() {
-				done := cpuTimer(b)
+				done := benchcpu.Timer(b)
 				for b.Loop() {
 					f()
 				}
