@@ -56,13 +56,7 @@ func TestCartesianNormal(t *testing.T) {
 		op.Adjoint(want, y)
 		got := make([]complex128, op.ImageLen())
 		op.Clone().Normal(got, x)
-		var num, den float64
-		for i := range got {
-			d := got[i] - want[i]
-			num += real(d)*real(d) + imag(d)*imag(d)
-			den += real(want[i])*real(want[i]) + imag(want[i])*imag(want[i])
-		}
-		if e := math.Sqrt(num / den); e > 1e-13 {
+		if e := relDiff(got, want); e > 1e-13 {
 			t.Errorf("%s: Normal differs from Adjoint∘Forward by %.3g (relative)", c.name, e)
 		}
 	}
@@ -128,15 +122,20 @@ func TestSENSENormal(t *testing.T) {
 			for range 2 { // the second call runs on the kept scratch
 				op.Normal(got, x)
 			}
-			var num, den float64
-			for i := range got {
-				d := got[i] - want[i]
-				num += real(d)*real(d) + imag(d)*imag(d)
-				den += real(want[i])*real(want[i]) + imag(want[i])*imag(want[i])
-			}
-			if e := math.Sqrt(num / den); e > 1e-12 {
+			if e := relDiff(got, want); e > 1e-12 {
 				t.Errorf("%s, whitened %v: Normal differs from Adjoint∘Forward by %.3g (relative)", name, white, e)
 			}
 		}
 	}
+}
+
+// relDiff returns ‖got − want‖/‖want‖.
+func relDiff(got, want []complex128) float64 {
+	var num, den float64
+	for i := range got {
+		d := got[i] - want[i]
+		num += real(d)*real(d) + imag(d)*imag(d)
+		den += real(want[i])*real(want[i]) + imag(want[i])*imag(want[i])
+	}
+	return math.Sqrt(num / den)
 }
