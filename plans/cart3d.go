@@ -149,10 +149,26 @@ func sampling3D(p *Plan, s Scheme, r float64, seed uint64) (trajectories.Samplin
 
 // planes3D is the block-diagonal operator that applies one plane operator to
 // each readout plane of a stacked image, so the priors and the solvers see
-// one image and one data vector.
+// one image and one data vector. The plane operators of the sweep (Cartesian,
+// SENSE) apply EᴴE directly, and so does the stack.
 type planes3D struct {
-	op     simulate.Operator
+	op     simulate.NormalOperator
 	planes int
+}
+
+// Normal applies the plane operator's EᴴE to each plane.
+func (b planes3D) Normal(dst, src []complex128) {
+	n := b.op.ImageLen()
+	for q := 0; q < b.planes; q++ {
+		b.op.Normal(dst[q*n:(q+1)*n], src[q*n:(q+1)*n])
+	}
+}
+
+// OrthonormalRows reports whether the plane operator has E·Eᴴ = I, which
+// the block-diagonal stack then has too.
+func (b planes3D) OrthonormalRows() bool {
+	o, ok := b.op.(simulate.OrthonormalRows)
+	return ok && o.OrthonormalRows()
 }
 
 func (b planes3D) ImageLen() int { return b.planes * b.op.ImageLen() }
@@ -198,11 +214,33 @@ func (env *runEnv) scene3D() error {
 }
 
 // encoding3D builds the stacked-plane operator of a 3D candidate and its
-// data: each plane's exact cut spectrum at the acquired (ky, kz) points.
+// data: each plane's exact cut spectrum at the acquired (ky, kz) points,
+// with a receive array the exact coil-weighted spectra (coil-major within
+// each plane, the layout of SENSE).
 func (w *workerState) encoding3D(ci int, e *encoding) error {
 	env := w.env
 	s := env.out.Candidates[ci].Sampling
 	nz, ny := env.plan.PlaneSize()
+	if env.coils != nil {
+		op, err := simulate.NewCartesianSENSE(nz, ny, s.Mask, env.planeMaps, env.coilNoise)
+		if err != nil {
+			return err
+		}
+		e.op = planes3D{op: op, planes: len(env.cuts)}
+		env.clean.once[ci].Do(func() {
+			var d []complex128
+			for _, cut := range env.cuts {
+				pd, err := env.coils.CartesianData(cut, nz, ny, s.Mask)
+				if err != nil {
+					env.clean.err[ci] = err
+					return
+				}
+				d = append(d, pd...)
+			}
+			env.clean.data[ci] = d
+		})
+		return nil
+	}
 	op, err := simulate.NewCartesian(nz, ny, s.Mask)
 	if err != nil {
 		return err

@@ -127,9 +127,11 @@ func dataLen(c Candidate) int {
 }
 
 // estimateBytes counts the large allocations of a run: what every candidate
-// keeps (sampling, PSF, kept images, noiseless data), and what every worker
-// holds per candidate it has met (operators with their grids and kernel
-// tables) and per method (solver buffers).
+// keeps (sampling, PSF, kept images, noiseless data of every coil), what the
+// run shares (spectrum; with a receive array its maps, in 3D also one
+// plane's, and the maps mixed by Ψ⁻¹), and what every worker holds per
+// candidate it has met (operators with their grids and kernel tables, data
+// draw and residual of every coil) and per method (solver buffers).
 func estimateBytes(p *Plan, cands []Candidate, workers int) int64 {
 	r, c := p.ImageSize()
 	ny, nx := int64(r), int64(c)
@@ -137,13 +139,20 @@ func estimateBytes(p *Plan, cands []Candidate, workers int) int64 {
 	nr := int64(len(p.Recons))
 	var shared, perWorker int64
 	shared += img * 16 // spectrum on the Cartesian grid
+	coils := int64(max(p.Scanner.Coils, 1))
+	if coils > 1 {
+		shared += 3 * coils * img * 16 // maps (stacked in 3D, and one plane's), mixed maps
+	}
 	for _, c := range cands {
-		n := int64(dataLen(c))
+		n := int64(dataLen(c)) * coils
 		shared += img*16 + img*8*nr + n*16 // PSF, kept images, noiseless data
 		shared += int64(len(c.Sampling.Mask)) + int64(len(c.Sampling.K))*24
 		op := img * 16 // Cartesian scratch grid
 		if c.Sampling.Mask == nil {
 			op = 4*img*16 + n*(16+2*4*8) // oversampled grid and kernel tables (α = 2, W = 4)
+		}
+		if coils > 1 {
+			op += 2 * img * 16 // the SENSE operator's two scratch images
 		}
 		perWorker += op + 2*n*16 // operator, data draw and residual
 	}

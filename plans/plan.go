@@ -660,9 +660,6 @@ func (v *validator) plan(p *Plan) {
 	if s.Coils < 1 || s.Coils > 64 {
 		v.fail("scanner", -1, "coils", fmt.Sprintf("must be between 1 and 64, got %d", s.Coils), "1 for a single uniform coil, e.g. 8 for a ring array")
 	}
-	if s.Coils > 1 && p.Object.Partitions > 0 {
-		v.fail("scanner", -1, "coils", "receive arrays are not simulated for 3D plans yet", "use coils = 1 with partitions, or a 2D plan")
-	}
 	if !(s.CoilCorrelation >= 0) || s.CoilCorrelation >= 1 || (s.CoilCorrelation > 0 && s.Coils < 2) {
 		v.fail("scanner", -1, "coil_noise_correlation", fmt.Sprintf("must lie in [0, 1) with 2 or more coils, got %v", s.CoilCorrelation), "0.1 to 0.3 is typical of neighbouring coils")
 	}

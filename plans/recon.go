@@ -268,9 +268,10 @@ func (w *workerState) reconstruct(ri int, enc *encoding, y []complex128, lambda 
 
 // adjoint writes the adjoint image of y into s.zf: Eᴴy, or EᴴWy with the
 // density compensation of a non-Cartesian trajectory; with a receive array
-// the coil images are combined with their sensitivities and divided by
-// Σ|S_c|², so that full sampling returns the object itself (the matched-filter
-// combination of Roemer PB et al., MRM 1990;16:192-225, for white noise).
+// the coil images are combined with their sensitivities (through the
+// prewhitening when the coil noise is correlated) and divided by Sᴴ·Ψ⁻¹·S
+// (Σ|S_c|² for white noise), so that full sampling returns the object itself
+// (the SNR-optimal combination of Roemer PB et al., MRM 1990;16:192-225).
 func (w *workerState) adjoint(s *solver, enc *encoding, y []complex128) {
 	defer func() {
 		if c := w.env.combine; c != nil {

@@ -5,6 +5,7 @@ import (
 	"fmt"
 	"hash/fnv"
 	"math"
+	"math/cmplx"
 	"math/rand/v2"
 	"runtime"
 	"sync"
@@ -491,16 +492,19 @@ type runEnv struct {
 	// MRI: the analytic phantom and its spectrum on the centred grid.
 	phantom  supportedPhantom
 	spectrum []complex128
-	// MRI with a receive array: the coils, their maps on the grid and the
-	// coil noise covariance (nil coils: one uniform coil).
+	// MRI with a receive array: the coils, their maps on the scored image
+	// (in 3D stacked over the readout planes) and the coil noise covariance
+	// (nil coils: one uniform coil).
 	coils     *simulate.CoilArray
 	maps      [][]complex128
 	coilNoise *simulate.NoiseCovariance
 	combine   []float64 // 1/Σ|S_c|² per pixel: the adjoint's coil combination made unbiased
 	// 3D: the phantom's cuts at the readout positions and their spectra on
-	// the plane grid.
+	// the plane grid; with coils, the maps on one plane (the ring surrounds
+	// the readout axis, so every plane sees the same sensitivities).
 	cuts       []simulate.Ellipses
 	cutSpectra [][]complex128
+	planeMaps  [][]complex128
 	// ODT: the instrument and the specimen.
 	setup    odt.Setup
 	specimen odt.Specimen
@@ -522,6 +526,27 @@ func (env *runEnv) setScene() error {
 	case p.Is3D():
 		if err := env.scene3D(); err != nil {
 			return err
+		}
+		if n := p.Scanner.Coils; n > 1 {
+			nz, ny := p.PlaneSize()
+			if err := env.receiveArray(n, nz, ny); err != nil {
+				return err
+			}
+			env.planeMaps = env.maps
+			// The scored image stacks the planes: so do the maps the
+			// coil combination and CG-SENSE's preconditioner use.
+			planes := len(env.cuts)
+			stacked := make([][]complex128, n)
+			for c, m := range env.planeMaps {
+				stacked[c] = make([]complex128, 0, planes*len(m))
+				for range planes {
+					stacked[c] = append(stacked[c], m...)
+				}
+			}
+			env.maps = stacked
+			if err := env.setCombine(); err != nil {
+				return err
+			}
 		}
 	case p.Modality == ModalityODT:
 		env.setup, env.specimen = odtSetup(p), odtSpecimen(p.Object.Phantom)
@@ -561,26 +586,11 @@ func (env *runEnv) setScene() error {
 			env.spectrum = simulate.CartesianSpectrum(ph, nx, ny)
 		}
 		if n := p.Scanner.Coils; n > 1 {
-			if env.coils, err = simulate.DefaultCoilRing(n).Build(); err != nil {
+			if err := env.receiveArray(n, ny, nx); err != nil {
 				return err
 			}
-			if env.maps, err = env.coils.Maps(ny, nx); err != nil {
+			if err := env.setCombine(); err != nil {
 				return err
-			}
-			var psi []complex128
-			if rho := p.Scanner.CoilCorrelation; rho > 0 {
-				psi = simulate.RingNoiseCovariance(n, rho)
-			}
-			if env.coilNoise, err = simulate.NewNoiseCovariance(n, psi); err != nil {
-				return err
-			}
-			d, err := priors.IntensityCorrection(env.maps)
-			if err != nil {
-				return err
-			}
-			env.combine = make([]float64, len(d))
-			for i, v := range d {
-				env.combine[i] = v * v
 			}
 		}
 	}
@@ -591,6 +601,61 @@ func (env *runEnv) setScene() error {
 	env.dataRange = hi - lo
 	if !(env.dataRange > 0) {
 		return fmt.Errorf("the truth image is flat; nothing to measure")
+	}
+	return nil
+}
+
+// receiveArray builds the plan's ring of n coils, its maps on an ny×nx grid
+// and the coil noise covariance.
+func (env *runEnv) receiveArray(n, ny, nx int) error {
+	var err error
+	if env.coils, err = simulate.DefaultCoilRing(n).Build(); err != nil {
+		return err
+	}
+	if env.maps, err = env.coils.Maps(ny, nx); err != nil {
+		return err
+	}
+	var psi []complex128
+	if rho := env.plan.Scanner.CoilCorrelation; rho > 0 {
+		psi = simulate.RingNoiseCovariance(n, rho)
+	}
+	env.coilNoise, err = simulate.NewNoiseCovariance(n, psi)
+	return err
+}
+
+// setCombine sets the per-pixel weight of the coil combination of the
+// adjoint image: 1/(Sᴴ·Ψ⁻¹·S), the diagonal of EᴴE at full sampling for the
+// prewhitened operator, so that full sampling returns the object itself
+// (1/Σ|S_c|² for white coil noise). The adjoint of the whitened operator is
+// then the SNR-optimal combination of Roemer PB et al., MRM 1990;16:192-225.
+func (env *runEnv) setCombine() error {
+	maps := env.maps
+	n := len(maps)
+	var inv []complex128
+	if nc := env.coilNoise; nc != nil && !nc.IsIdentity() {
+		inv = nc.Inverse()
+	}
+	env.combine = make([]float64, len(maps[0]))
+	for i := range env.combine {
+		var v float64
+		if inv == nil {
+			for _, m := range maps {
+				v += real(m[i])*real(m[i]) + imag(m[i])*imag(m[i])
+			}
+		} else {
+			for c := range n {
+				var s complex128
+				for d := range n {
+					s += inv[c*n+d] * maps[d][i]
+				}
+				v += real(cmplx.Conj(maps[c][i]) * s)
+			}
+		}
+		if v > 0 && !math.IsInf(v, 0) {
+			env.combine[i] = 1 / v
+		} else {
+			env.combine[i] = 1
+		}
 	}
 	return nil
 }
@@ -647,10 +712,22 @@ func (w *workerState) addNoise(y []complex128, rng *rand.Rand) error {
 		simulate.AddNoise(y, w.env.out.Sigma, rng)
 		return nil
 	}
-	if err := nc.AddNoise(y, w.env.out.Sigma, rng); err != nil {
-		return err
+	// Coil-major data, in 3D once per readout plane (see encoding3D).
+	blocks := 1
+	if w.env.plan.Is3D() {
+		blocks = len(w.env.cuts)
 	}
-	return nc.Whiten(y)
+	m := len(y) / blocks
+	for b := range blocks {
+		yb := y[b*m : (b+1)*m]
+		if err := nc.AddNoise(yb, w.env.out.Sigma, rng); err != nil {
+			return err
+		}
+		if err := nc.Whiten(yb); err != nil {
+			return err
+		}
+	}
+	return nil
 }
 
 // splitK returns the kx and ky coordinates of k-space points.

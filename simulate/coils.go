@@ -811,6 +811,37 @@ type NoiseCovariance struct {
 	chol  []complex128 // L, lower triangular, row-major
 	white []complex128 // L⁻¹, lower triangular, row-major
 	ident bool
+
+	// The maps mixed by Ψ⁻¹ for SENSE.Normal, kept for the last set of
+	// maps asked for, so that every operator over the same maps and
+	// covariance (one per worker and candidate) shares one copy.
+	mixMu   sync.Mutex
+	mixFor  [][]complex128
+	mixMaps [][]complex128
+}
+
+// mixedMaps returns T_c = Σ_d (Ψ⁻¹)_cd·maps[d], computed once for a given
+// set of maps (by identity) and shared; safe for concurrent use.
+func (nc *NoiseCovariance) mixedMaps(maps [][]complex128) [][]complex128 {
+	nc.mixMu.Lock()
+	defer nc.mixMu.Unlock()
+	if !sameMaps(nc.mixFor, maps) {
+		nc.mixFor, nc.mixMaps = maps, mixMaps(maps, nc.Inverse())
+	}
+	return nc.mixMaps
+}
+
+// sameMaps reports whether a and b are the same slices of the same maps.
+func sameMaps(a, b [][]complex128) bool {
+	if len(a) != len(b) {
+		return false
+	}
+	for i := range a {
+		if len(a[i]) != len(b[i]) || (len(a[i]) > 0 && &a[i][0] != &b[i][0]) {
+			return false
+		}
+	}
+	return true
 }
 
 // NewNoiseCovariance checks that psi (coils×coils, row-major) is Hermitian and

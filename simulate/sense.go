@@ -184,9 +184,9 @@ func (s *SENSE) Adjoint(dst, src []complex128) {
 //
 // since the coil mixing WᴴW = Ψ⁻¹ acts per sample and commutes with the
 // linear N: one N per coil instead of a Forward and an Adjoint, and with
-// whitening the mixed maps T_c computed once. Otherwise it is
-// Adjoint∘Forward. The first call allocates what it needs (with whitening
-// Coils() images for T); later calls allocate nothing.
+// whitening the mixed maps T_c computed once per maps and covariance and
+// shared by every operator over them. Otherwise it is Adjoint∘Forward. The
+// first call allocates what it needs; later calls allocate nothing.
 func (s *SENSE) Normal(dst, src []complex128) {
 	if len(dst) != s.n || len(src) != s.n {
 		panic(fmt.Sprintf("simulate: SENSE Normal with %d and %d pixels, want %d", len(dst), len(src), s.n))
@@ -206,7 +206,7 @@ func (s *SENSE) Normal(dst, src []complex128) {
 	in := s.maps
 	if s.noise != nil {
 		if s.mixed == nil {
-			s.mixed = mixMaps(s.maps, s.noise.Inverse())
+			s.mixed = s.noise.mixedMaps(s.maps)
 		}
 		in = s.mixed
 	}
