@@ -44,18 +44,18 @@ func runOrMerge(ctx context.Context, name string, args []string, stdout, stderr 
 		}
 		fs.PrintDefaults()
 	}
-	if err := fs.Parse(args); err != nil {
+	pos, err := parseArgs(fs, args)
+	if err != nil {
 		return errUsage
 	}
-	if fs.NArg() > 1 || (fs.NArg() == 1 && *builtin != "") {
+	if len(pos) > 1 || (len(pos) == 1 && *builtin != "") {
 		fs.Usage()
 		return errUsage
 	}
 	var p *plans.Plan
-	var err error
 	switch {
-	case fs.NArg() == 1:
-		if p, err = plans.Load(fs.Arg(0)); err != nil {
+	case len(pos) == 1:
+		if p, err = plans.Load(pos[0]); err != nil {
 			return err
 		}
 	case *builtin != "":
@@ -251,14 +251,15 @@ func cmdCheck(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 		fmt.Fprintln(stderr, "usage: accelplan check [-workers N] [-no-calibration] PLAN.toml")
 		fs.PrintDefaults()
 	}
-	if err := fs.Parse(args); err != nil {
+	pos, err := parseArgs(fs, args)
+	if err != nil {
 		return errUsage
 	}
-	if fs.NArg() != 1 {
+	if len(pos) != 1 {
 		fs.Usage()
 		return errUsage
 	}
-	p, err := plans.Load(fs.Arg(0))
+	p, err := plans.Load(pos[0])
 	if err != nil {
 		return err
 	}
@@ -270,7 +271,7 @@ func cmdCheck(ctx context.Context, args []string, stdout, stderr io.Writer) erro
 	if n <= 0 {
 		n = runtime.GOMAXPROCS(0)
 	}
-	fmt.Fprintf(stdout, "%s: valid plan %q (%s)\n", fs.Arg(0), p.Title, p.Modality)
+	fmt.Fprintf(stdout, "%s: valid plan %q (%s)\n", pos[0], p.Title, p.Modality)
 	tw := tabwriter.NewWriter(stdout, 2, 4, 2, ' ', 0)
 	fmt.Fprintln(tw, "scheme\tasked R\tachieved R\tshots\tscan time")
 	for _, c := range cands {

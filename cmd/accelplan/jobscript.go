@@ -52,21 +52,22 @@ func cmdJobScript(args []string, stdout, stderr io.Writer) error {
 		fmt.Fprintln(stderr, "usage: accelplan jobscript [-shards N] [-cpus C] [-out DIR] [-exe PATH] PLAN.toml > job.sh")
 		fs.PrintDefaults()
 	}
-	if err := fs.Parse(args); err != nil {
+	pos, err := parseArgs(fs, args)
+	if err != nil {
 		return errUsage
 	}
-	if fs.NArg() != 1 {
+	if len(pos) != 1 {
 		fs.Usage()
 		return errUsage
 	}
 	if *shards < 1 || *shards > 10000 || *cpus < 1 || *cpus > 1024 {
 		return fmt.Errorf("-shards must be 1..10000 and -cpus 1..1024, got %d and %d", *shards, *cpus)
 	}
-	p, err := plans.Load(fs.Arg(0))
+	p, err := plans.Load(pos[0])
 	if err != nil {
 		return err
 	}
-	planPath, err := filepath.Abs(fs.Arg(0))
+	planPath, err := filepath.Abs(pos[0])
 	if err != nil {
 		return err
 	}

@@ -129,3 +129,24 @@ func newFlags(name string, stderr io.Writer) *flag.FlagSet {
 	fs.SetOutput(stderr)
 	return fs
 }
+
+// parseArgs parses the flags of a command wherever they stand among its
+// arguments (`run plan.toml -out dir` as well as `run -out dir plan.toml`)
+// and returns the other arguments in order; everything after "--" is an
+// argument.
+func parseArgs(fs *flag.FlagSet, args []string) ([]string, error) {
+	var rest []string
+	for {
+		if err := fs.Parse(args); err != nil {
+			return nil, err
+		}
+		left := fs.Args()
+		if len(left) == 0 {
+			return rest, nil
+		}
+		if used := len(args) - len(left); used > 0 && args[used-1] == "--" {
+			return append(rest, left...), nil
+		}
+		rest, args = append(rest, left[0]), left[1:]
+	}
+}
