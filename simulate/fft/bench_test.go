@@ -88,6 +88,7 @@ func bench2DSet(b *testing.B, ny, nx int) {
 func BenchmarkFFT2_256(b *testing.B) { bench2DSet(b, 256, 256) }
 func BenchmarkFFT2_192(b *testing.B) { bench2DSet(b, 192, 192) }
 func BenchmarkFFT2_240(b *testing.B) { bench2DSet(b, 240, 240) }
+func BenchmarkFFT2_128(b *testing.B) { bench2DSet(b, 128, 128) }
 
 // BenchmarkFFT2_512 is the size of a 2×-oversampled gridding transform of a
 // 256² image; only ours and gonum (go-dsp allocates 4 MiB per call).

@@ -54,3 +54,22 @@ func BenchmarkPlan2D256(b *testing.B) {
 	y := make([]complex128, len(x))
 	benchPaths(b, func() { p.Forward(y, x) })
 }
+
+// BenchmarkColumnFilter128 and 512: sides with an odd power of two, whose
+// column passes take one radix-8 stage among the radix-4 ones.
+func BenchmarkColumnFilter128(b *testing.B) { benchColumnFilter(b, 128) }
+func BenchmarkColumnFilter512(b *testing.B) { benchColumnFilter(b, 512) }
+
+func benchColumnFilter(b *testing.B, n int) {
+	p, _ := NewPlan2D(n, n)
+	x := rand2D(n, n)
+	y := make([]complex128, len(x))
+	h := make([]float64, n)
+	for i := range h {
+		if i%3 == 0 {
+			h[i] = 1
+		}
+	}
+	p.CentredColumnFilter(y, x, h)
+	benchPaths(b, func() { p.CentredColumnFilter(y, x, h) })
+}

@@ -137,6 +137,13 @@ func factor(n int, use8 bool) ([]int, bool) {
 	for ; use8 && e >= 3 && e != 4; e -= 3 {
 		pow2 = append(pow2, 8)
 	}
+	if !use8 && e >= 3 && e%2 == 1 {
+		// Column passes stay on radix 4, but an odd power of two takes one
+		// radix-8 pass rather than a radix-2 one: one pass fewer, and
+		// radix 8 has SIMD kernels where radix 2 has none.
+		pow2 = append(pow2, 8)
+		e -= 3
+	}
 	for ; e >= 2; e -= 2 {
 		pow2 = append(pow2, 4)
 	}
