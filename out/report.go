@@ -303,6 +303,9 @@ type figView struct {
 
 // formatSeconds prints seconds with one decimal ("128.0 s").
 func formatSeconds(s float64) string {
+	if math.Abs(s) < 1 {
+		return strconv.FormatFloat(s*1000, 'f', 1, 64) + " ms"
+	}
 	if math.Abs(s) < 10 {
 		return strconv.FormatFloat(s, 'f', 2, 64) + " s"
 	}
@@ -311,8 +314,8 @@ func formatSeconds(s float64) string {
 
 // reportTime is a scan time as the report's headings and tables show it:
 // clock time (FormatMinSec) from ten seconds on, seconds with two decimals
-// below, where whole-second clock time would read 0:00 for the sub-second
-// acquisitions of optical tomography.
+// below and milliseconds below a second (formatSeconds), where whole-second
+// clock time would read 0:00 for the acquisitions of optical tomography.
 func reportTime(s float64) string {
 	if math.Abs(s) < 10 {
 		return formatSeconds(s)

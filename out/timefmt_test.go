@@ -66,14 +66,15 @@ func TestFormatMinSecMatchesPythonTimedelta(t *testing.T) {
 	}
 }
 
-// The report's large scan times: seconds below ten seconds (a sub-second
-// optical tomography scan must not read 0:00), clock time from there on.
+// The report's large scan times: milliseconds below a second and seconds
+// below ten seconds (an optical tomography scan must not read 0:00), clock
+// time from there on.
 func TestReportTime(t *testing.T) {
 	for _, c := range []struct {
 		s    float64
 		want string
 	}{
-		{0.004, "0.00 s"}, {0.36, "0.36 s"}, {2.5, "2.50 s"}, {9.994, "9.99 s"},
+		{0.004, "4.0 ms"}, {0.015, "15.0 ms"}, {0.36, "360.0 ms"}, {2.5, "2.50 s"}, {9.994, "9.99 s"},
 		{10, "0:10"}, {59.6, "1:00"}, {125, "2:05"}, {3725, "1:02:05"},
 	} {
 		if got := reportTime(c.s); got != c.want {

@@ -345,14 +345,10 @@ func printRecommendation(w io.Writer, o *plans.Outcome, a *plans.Analysis, dir s
 	fmt.Fprintf(w, "Report, curve, images and tables: %s\n", dir)
 }
 
-// duration formats a scan time: m:ss from a minute up, seconds with one
-// decimal below.
-func duration(s float64) string {
-	if s < 59.95 {
-		return fmt.Sprintf("%.1f s", s)
-	}
-	return out.FormatMinSec(s)
-}
+// duration formats a scan time as the summary table does (scanTimeText):
+// milliseconds below a second, so that an optical acquisition does not read
+// 0.0 s, seconds below a minute, m:ss above.
+func duration(s float64) string { return scanTimeText(s) }
 
 // cpuSeconds returns the user and system CPU time of this process so far.
 func cpuSeconds() float64 {

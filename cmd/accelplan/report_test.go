@@ -131,10 +131,13 @@ func atof(t *testing.T, s string) float64 {
 }
 
 // minSec formats seconds as the report shows them: m:ss, rounded to the
-// nearest second, from ten seconds on, and seconds with two decimals below
-// (so that sub-second acquisitions do not read 0:00). Written here from that
+// nearest second, from ten seconds on, seconds with two decimals below and
+// milliseconds below a second (so that optical acquisitions do not read 0:00). Written here from that
 // rule rather than taken from the out package.
 func minSec(s float64) string {
+	if s < 1 {
+		return fmt.Sprintf("%.1f ms", s*1000)
+	}
 	if s < 10 {
 		return fmt.Sprintf("%.2f s", s)
 	}
