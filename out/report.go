@@ -323,6 +323,24 @@ func reportTime(s float64) string {
 	return FormatMinSec(s)
 }
 
+// secondsIfClock is formatSeconds(s) where reportTime shows clock time, and
+// "" where it shows the seconds already.
+func secondsIfClock(s float64) string {
+	if sec := formatSeconds(s); sec != reportTime(s) {
+		return sec
+	}
+	return ""
+}
+
+// timeAndSeconds is reportTime(s) followed by the seconds in parentheses
+// when reportTime shows clock time: "1:48 (108.0 s)", "275.0 ms".
+func timeAndSeconds(s float64) string {
+	if sec := secondsIfClock(s); sec != "" {
+		return reportTime(s) + " (" + sec + ")"
+	}
+	return reportTime(s)
+}
+
 // formatR prints an acceleration factor with at most two decimals.
 func formatR(r float64) string {
 	s := strconv.FormatFloat(r, 'f', 2, 64)
@@ -410,7 +428,7 @@ func buildReportView(r Report) (*reportView, error) {
 		Facts:          r.Facts,
 		Metric:         metric,
 		BarShort:       fmt.Sprintf("%s %s %s", metric, op, formatValue(r.Threshold)),
-		Reference:      reportTime(r.ReferenceTime) + " (" + formatSeconds(r.ReferenceTime) + ")",
+		Reference:      timeAndSeconds(r.ReferenceTime),
 		ReferenceLabel: r.ReferenceLabel,
 		ErrorNote:      r.ErrorNote,
 		Script:         template.JS(reportScript),
@@ -609,7 +627,7 @@ func buildPick(what string, p ReportPick, ref float64) (pickView, error) {
 	saved := ref - p.ScanTime
 	pv := pickView{
 		Found: true, Protocol: p.Protocol, Scheme: p.Scheme, Method: p.Method,
-		Time: reportTime(p.ScanTime), Seconds: formatSeconds(p.ScanTime),
+		Time: reportTime(p.ScanTime), Seconds: secondsIfClock(p.ScanTime),
 		Saved: reportTime(math.Abs(saved)), SavedSeconds: formatSeconds(math.Abs(saved)),
 		SavedPct: strconv.FormatFloat(100*math.Abs(saved)/ref, 'f', 1, 64) + "%",
 		Longer:   saved < 0,
@@ -650,7 +668,7 @@ func buildCandidate(k, i int, c ReportCandidate, r Report, metric string, shared
 	cv := candView{
 		ID: fmt.Sprintf("cand-%d", k+1), Number: strconv.Itoa(k + 1),
 		Label: label, Scheme: c.Scheme, Method: c.Method, Group: group,
-		Time: reportTime(c.ScanTime), Seconds: formatSeconds(c.ScanTime),
+		Time: reportTime(c.ScanTime), Seconds: secondsIfClock(c.ScanTime),
 		Lambda: c.Lambda, Note: c.Note, Meets: c.Meets, Pick: c.Pick,
 	}
 	if !finiteReport(c.R) || c.R < 0 {

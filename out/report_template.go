@@ -180,7 +180,7 @@ footer.foot { margin-top: 3rem; padding: 1rem 0 2rem; border-top: 1px solid var(
 <div>
 <span class="tag">✓ shortest protocol meeting the bar</span>
 <span class="bigtime">{{.Pick.Time}}</span>
-<span class="sub">scan time, {{.Pick.Seconds}}</span>
+<span class="sub">scan time{{with .Pick.Seconds}}, {{.}}{{end}}</span>
 <span class="saved">{{if .Pick.Longer}}{{.Pick.Saved}} longer ({{.Pick.SavedPct}} more){{else}}saves {{.Pick.Saved}} ({{.Pick.SavedPct}}){{end}}</span>
 <span class="sub">against the reference protocol, {{.Reference}}</span>
 </div>
@@ -262,7 +262,7 @@ footer.foot { margin-top: 3rem; padding: 1rem 0 2rem; border-top: 1px solid var(
 <noscript><p class="hint">Script is off: every candidate is listed below, in order of scan time.</p></noscript>
 <div id="cand-list" data-start="{{.StartID}}" data-start-group="{{.StartGroup}}">
 {{range .Candidates}}<article class="cand {{if .Meets}}pass{{else}}fail{{end}}{{if .Pick}} pick{{end}}" id="{{.ID}}" data-group="{{.Group}}" data-time="{{.Time}}" data-summary="{{.Label}} · {{.Group}} · {{.Time}} · {{if .Meets}}✓ meets the bar{{else}}✗ misses the bar{{end}}{{if .Pick}} · ★ recommended{{end}}">
-<div class="cand-head"><span class="cand-no" title="position in order of scan time">#{{.Number}}</span><h3>{{.Label}}</h3>{{if .Meets}}<span class="badge pass">✓ meets the bar</span>{{else}}<span class="badge fail">✗ misses the bar</span>{{end}}{{if .Pick}}<span class="badge pick">★ recommended</span>{{end}}{{if .Pareto}}<span class="badge front" title="no other candidate is both shorter and better">◆ Pareto front</span>{{end}}<span class="cand-time">{{.Time}} <small>{{.Seconds}}</small></span></div>
+<div class="cand-head"><span class="cand-no" title="position in order of scan time">#{{.Number}}</span><h3>{{.Label}}</h3>{{if .Meets}}<span class="badge pass">✓ meets the bar</span>{{else}}<span class="badge fail">✗ misses the bar</span>{{end}}{{if .Pick}}<span class="badge pick">★ recommended</span>{{end}}{{if .Pareto}}<span class="badge front" title="no other candidate is both shorter and better">◆ Pareto front</span>{{end}}<span class="cand-time">{{.Time}}{{with .Seconds}} <small>{{.}}</small>{{end}}</span></div>
 <p class="cand-sub">{{with .Scheme}}{{.}}{{end}}{{if and .Scheme .Method}} · {{end}}{{with .Method}}{{.}}{{end}}{{with .R}} · R = {{.}}{{end}}{{with .Lines}} · {{.}} lines{{end}}</p>
 <div class="figs">{{range .Figures}}<figure class="fig fig-{{.Kind}}">{{if .Src}}<img {{.Src}} alt="{{.Alt}}"/>{{else}}<div class="noimg">not available</div>{{end}}<figcaption>{{.Caption}}{{with .Note}}<br/><span class="note">{{.}}</span>{{end}}</figcaption></figure>{{end}}</div>
 <div class="cand-foot">

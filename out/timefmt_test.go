@@ -82,3 +82,16 @@ func TestReportTime(t *testing.T) {
 		}
 	}
 }
+
+// The seconds beside a clock time appear only where the clock time does not
+// already show them.
+func TestTimeAndSeconds(t *testing.T) {
+	for _, c := range []struct {
+		s    float64
+		want string
+	}{{0.275, "275.0 ms"}, {4, "4.00 s"}, {108, "1:48 (108.0 s)"}, {54, "0:54 (54.0 s)"}} {
+		if got := timeAndSeconds(c.s); got != c.want {
+			t.Errorf("timeAndSeconds(%g) = %q, want %q", c.s, got, c.want)
+		}
+	}
+}
