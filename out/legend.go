@@ -106,7 +106,7 @@ func legendEntriesShowing(c CurveChart, shown int) []legendEntry {
 		if pt.Label != "" {
 			txt += ", " + pt.Label
 		}
-		txt += fmt.Sprintf(", %s, mean %s %s", FormatMinSec(pt.ScanTime), metric, formatValue(pt.Mean))
+		txt += fmt.Sprintf(", %s, mean %s %s", reportTime(pt.ScanTime), metric, formatValue(pt.Mean))
 		add(legendEntry{text: txt, thumb: func(dc draw.Canvas, mid vg.Point, k float64) {
 			r := pickRing
 			r.Radius = vg.Points(6 * k)
