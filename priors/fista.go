@@ -99,35 +99,15 @@ func FISTA(op simulate.Operator, y []complex128, prior Prior, lambda float64, op
 	if err := checkFISTA(op, y, prior, lambda, opt); err != nil {
 		return nil, info, err
 	}
-	n, m := op.ImageLen(), op.DataLen()
-	maxIter := opt.MaxIter
-	if maxIter == 0 {
-		maxIter = 100
-	}
-	x := make([]complex128, n)
-	xPrev := make([]complex128, n)
-	z := make([]complex128, n)
-	g := make([]complex128, n)
-	r := make([]complex128, m)
-
-	step, err := fistaStep(op, opt.Step, g, z, r)
+	s, err := startFISTA(op, y, lambda, opt)
 	if err != nil {
 		return nil, info, err
 	}
+	x, xPrev, z, g, r := s.x, s.xPrev, s.z, s.g, s.r
+	step, thr, grad := s.step, s.thr, s.grad
 	info.Step = step
-	thr := lambda * step
-
-	if opt.X0 != nil {
-		copy(xPrev, opt.X0)
-	} else {
-		op.Adjoint(xPrev, y)
-	}
-	copy(z, xPrev)
-	copy(x, xPrev) // returned as is when maxIter iterations are zero
 	t := 1.0
-	grad := newGradStep(op, r)
-	grad.setData(y)
-	for k := 1; k <= maxIter; k++ {
+	for k := 1; k <= s.maxIter; k++ {
 		grad.apply(g, z, step) // g = z − step·E^H(E z − y)
 		if prior != nil && lambda > 0 {
 			prior.Prox(x, g, thr)
@@ -237,6 +217,42 @@ func estimateNormSq(op simulate.Operator, u, v, r []complex128, maxIter int, tol
 		est = q
 	}
 	return est
+}
+
+// fistaStart is the state FISTA and FISTARestart begin from: the buffers,
+// the step and threshold, and x_0 = xPrev = z = x (the warm start or Eᴴy).
+type fistaStart struct {
+	x, xPrev, z, g []complex128 // image-sized
+	r              []complex128 // data-sized
+	step, thr      float64
+	maxIter        int
+	grad           *gradStep
+}
+
+// startFISTA allocates the buffers of one solve, chooses the step (see
+// fistaStep) and sets the start.
+func startFISTA(op simulate.Operator, y []complex128, lambda float64, opt FISTAOptions) (*fistaStart, error) {
+	n, m := op.ImageLen(), op.DataLen()
+	mk := func(k int) []complex128 { return make([]complex128, k) }
+	s := &fistaStart{x: mk(n), xPrev: mk(n), z: mk(n), g: mk(n), r: mk(m), maxIter: opt.MaxIter}
+	if s.maxIter == 0 {
+		s.maxIter = 100
+	}
+	step, err := fistaStep(op, opt.Step, s.g, s.z, s.r)
+	if err != nil {
+		return nil, err
+	}
+	s.step, s.thr = step, lambda*step
+	if opt.X0 != nil {
+		copy(s.xPrev, opt.X0)
+	} else {
+		op.Adjoint(s.xPrev, y)
+	}
+	copy(s.z, s.xPrev)
+	copy(s.x, s.xPrev) // returned as is when no iteration runs
+	s.grad = newGradStep(op, s.r)
+	s.grad.setData(y)
+	return s, nil
 }
 
 // checkFISTA validates the arguments shared by FISTA and FISTARestart.

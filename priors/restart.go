@@ -102,39 +102,19 @@ func FISTARestart(op simulate.Operator, y []complex128, prior Prior, lambda floa
 	if prior != nil {
 		resetIfStateful(prior)
 	}
-	n, m := op.ImageLen(), op.DataLen()
-	maxIter := o.MaxIter
-	if maxIter == 0 {
-		maxIter = 100
-	}
-	x := make([]complex128, n)
-	xPrev := make([]complex128, n)
-	z := make([]complex128, n)
-	g := make([]complex128, n)
-	r := make([]complex128, m)
-
-	step, err := fistaStep(op, o.Step, g, z, r)
+	s, err := startFISTA(op, y, lambda, o)
 	if err != nil {
 		return nil, info, err
 	}
+	x, xPrev, z, g, r := s.x, s.xPrev, s.z, s.g, s.r
+	step, thr, grad, maxIter := s.step, s.thr, s.grad, s.maxIter
 	info.Step = step
-	thr := lambda * step
 	usePrior := prior != nil && lambda > 0
-
-	if o.X0 != nil {
-		copy(xPrev, o.X0)
-	} else {
-		op.Adjoint(xPrev, y)
-	}
-	copy(z, xPrev)
-	copy(x, xPrev)
 	fPrev := math.Inf(1)
 	if opt.Scheme == RestartFunction {
 		fPrev = objective(op, y, prior, lambda, xPrev, r)
 	}
 	t := 1.0
-	grad := newGradStep(op, r)
-	grad.setData(y)
 	for k := 1; k <= maxIter; k++ {
 		// x = prox(g), g = z − step·E^H(E z − y)
 		grad.apply(g, z, step)
