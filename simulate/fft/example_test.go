@@ -119,3 +119,31 @@ func ExamplePlan2D_Clone() {
 	// Output:
 	// [1 2 3 4]
 }
+
+// A column filter along y keeps only the DC row of centred k-space (ky = 0
+// at row ny/2): the image 1 + (−1)^i, a constant plus the highest frequency
+// along y, comes back as the constant.
+func ExamplePlan2D_CentredColumnFilter() {
+	const ny, nx = 4, 3
+	p, err := fft.NewPlan2D(ny, nx)
+	if err != nil {
+		panic(err)
+	}
+	img := make([]complex128, ny*nx)
+	for i := range ny {
+		for j := range nx {
+			img[i*nx+j] = complex(1+math.Pow(-1, float64(i)), 0)
+		}
+	}
+	h := make([]float64, ny)
+	h[ny/2] = 1
+	p.CentredColumnFilter(img, img, h)
+	for i := range ny {
+		fmt.Printf("%.3f %.3f %.3f\n", real(img[i*nx]), real(img[i*nx+1]), real(img[i*nx+2]))
+	}
+	// Output:
+	// 1.000 1.000 1.000
+	// 1.000 1.000 1.000
+	// 1.000 1.000 1.000
+	// 1.000 1.000 1.000
+}
