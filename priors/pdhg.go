@@ -489,8 +489,10 @@ func (s *TGVSolver) sym(w1, w2 []complex128) {
 	s.d.dyB(s.e22, w2)
 	s.d.dyB(s.e12, w1)
 	s.d.dxB(s.tmp, w2)
+	e12 := s.e12[:len(s.tmp)]
 	for i, v := range s.tmp {
-		s.e12[i] = 0.5 * (s.e12[i] + v)
+		u := e12[i] + v
+		e12[i] = complex(0.5*real(u), 0.5*imag(u))
 	}
 }
 
@@ -583,8 +585,7 @@ func (s *TGVSolver) Solve(x, y []complex128, alpha1, alpha0 float64, opt PDHGOpt
 		}
 	}
 	tau, sigma := s.tau, s.sigma
-	cs, ct := complex(sigma, 0), complex(tau, 0)
-	shrink := complex(1/(1+sigma), 0)
+	shrink := 1 / (1 + sigma)
 	copy(s.xbar, x)
 	copy(s.wb1, s.w1)
 	copy(s.wb2, s.w2)
@@ -592,8 +593,10 @@ func (s *TGVSolver) Solve(x, y []complex128, alpha1, alpha0 float64, opt PDHGOpt
 	for k := 1; k <= opt.MaxIter; k++ {
 		// Dual steps: data, first-order (ball α₁), second-order (ball α₀).
 		s.op.Forward(s.ex, s.xbar)
+		q, yy := s.q[:len(s.ex)], y[:len(s.ex)]
 		for i, v := range s.ex {
-			s.q[i] = (s.q[i] + cs*(v-y[i])) * shrink
+			d := v - yy[i]
+			q[i] = complex((real(q[i])+sigma*real(d))*shrink, (imag(q[i])+sigma*imag(d))*shrink)
 		}
 		s.d.grad(s.gx, s.gy, s.xbar)
 		for i := range s.gx {
@@ -608,19 +611,24 @@ func (s *TGVSolver) Solve(x, y []complex128, alpha1, alpha0 float64, opt PDHGOpt
 		s.d.adj(s.da, s.px, s.py)
 		s.symAdj(s.wt1, s.wt2, s.r11, s.r22, s.r12)
 		var dx2, x2 float64
+		n := len(x)
+		ea, da, xb := s.ea[:n], s.da[:n], s.xbar[:n]
+		wt1, wt2, px, py := s.wt1[:n], s.wt2[:n], s.px[:n], s.py[:n]
+		w1, w2, wb1, wb2 := s.w1[:n], s.w2[:n], s.wb1[:n], s.wb2[:n]
 		for i, v := range x {
-			nv := v - ct*(s.ea[i]+s.da[i])
+			g := ea[i] + da[i]
+			nv := complex(real(v)-tau*real(g), imag(v)-tau*imag(g))
 			dv := nv - v
 			dx2 += real(dv)*real(dv) + imag(dv)*imag(dv)
 			x2 += real(nv)*real(nv) + imag(nv)*imag(nv)
-			x[i], s.xbar[i] = nv, nv+dv
+			x[i], xb[i] = nv, nv+dv
 			// w-part of Kᵀz is −p + εᵀr; keep it in wt for the gap.
-			s.wt1[i] -= s.px[i]
-			s.wt2[i] -= s.py[i]
-			a := s.w1[i] - ct*s.wt1[i]
-			b := s.w2[i] - ct*s.wt2[i]
-			s.wb1[i], s.wb2[i] = 2*a-s.w1[i], 2*b-s.w2[i]
-			s.w1[i], s.w2[i] = a, b
+			t1, t2 := wt1[i]-px[i], wt2[i]-py[i]
+			wt1[i], wt2[i] = t1, t2
+			a := complex(real(w1[i])-tau*real(t1), imag(w1[i])-tau*imag(t1))
+			b := complex(real(w2[i])-tau*real(t2), imag(w2[i])-tau*imag(t2))
+			wb1[i], wb2[i] = 2*a-w1[i], 2*b-w2[i]
+			w1[i], w2[i] = a, b
 		}
 		rep.Iterations = k
 		rep.Change = 0
@@ -645,18 +653,20 @@ func (s *TGVSolver) Solve(x, y []complex128, alpha1, alpha0 float64, opt PDHGOpt
 // projectSym sets r ← proj_{|r|≤a}(r + σ·e) per pixel for symmetric 2×2
 // tensors stored as (r11, r22, r12) with |r|² = |r11|² + |r22|² + 2|r12|².
 func projectSym(r11, r22, r12, e11, e22, e12 []complex128, sigma, a float64) {
-	cs := complex(sigma, 0)
 	a2 := a * a
+	r22, r12 = r22[:len(r11)], r12[:len(r11)]
+	e11, e22, e12 = e11[:len(r11)], e22[:len(r11)], e12[:len(r11)]
 	for i := range r11 {
-		u := r11[i] + cs*e11[i]
-		v := r22[i] + cs*e22[i]
-		w := r12[i] + cs*e12[i]
-		m := real(u)*real(u) + imag(u)*imag(u) + real(v)*real(v) + imag(v)*imag(v) + 2*(real(w)*real(w)+imag(w)*imag(w))
+		p, q, s := r11[i], r22[i], r12[i]
+		ur, ui := real(p)+sigma*real(e11[i]), imag(p)+sigma*imag(e11[i])
+		vr, vi := real(q)+sigma*real(e22[i]), imag(q)+sigma*imag(e22[i])
+		wr, wi := real(s)+sigma*real(e12[i]), imag(s)+sigma*imag(e12[i])
+		m := ur*ur + ui*ui + vr*vr + vi*vi + 2*(wr*wr+wi*wi)
 		if m > a2 {
-			f := complex(a/math.Sqrt(m), 0)
-			u, v, w = u*f, v*f, w*f
+			f := a / math.Sqrt(m)
+			ur, ui, vr, vi, wr, wi = ur*f, ui*f, vr*f, vi*f, wr*f, wi*f
 		}
-		r11[i], r22[i], r12[i] = u, v, w
+		r11[i], r22[i], r12[i] = complex(ur, ui), complex(vr, vi), complex(wr, wi)
 	}
 }
 
