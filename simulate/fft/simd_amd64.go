@@ -35,26 +35,30 @@ func r4twAVX2(y0, y1, y2, y3, x0, x1, x2, x3 *complex128, n int, w *[6]float64)
 //go:noescape
 func r4scaleAVX2(y0, y1, y2, y3, x0, x1, x2, x3 *complex128, n int, scale float64)
 
+// runs4 returns the four output runs and then the four input runs of group
+// p of g (bounds-checked here, so the kernels need not).
+func runs4(y, x []complex128, g *geom, p int) (r [8]*complex128) {
+	s := g.s
+	xb, yb := p*g.xstep, p*g.ystep
+	for k := range 4 {
+		r[k] = &y[yb+g.yo[k] : yb+g.yo[k]+s][0]
+		r[4+k] = &x[xb+g.xo[k] : xb+g.xo[k]+s][0]
+	}
+	return r
+}
+
 // r4PassSIMD is r4notw for group 0 and r4 for the others with the AVX2
 // kernels; g.s must be even.
 func r4PassSIMD(y, x []complex128, tw []float64, g *geom) {
 	s := g.s
 	for p := range g.m {
-		xb, yb := p*g.xstep, p*g.ystep
-		x0 := x[xb+g.xo[0] : xb+g.xo[0]+s]
-		x1 := x[xb+g.xo[1] : xb+g.xo[1]+s]
-		x2 := x[xb+g.xo[2] : xb+g.xo[2]+s]
-		x3 := x[xb+g.xo[3] : xb+g.xo[3]+s]
-		y0 := y[yb+g.yo[0] : yb+g.yo[0]+s]
-		y1 := y[yb+g.yo[1] : yb+g.yo[1]+s]
-		y2 := y[yb+g.yo[2] : yb+g.yo[2]+s]
-		y3 := y[yb+g.yo[3] : yb+g.yo[3]+s]
+		r := runs4(y, x, g, p)
 		if p == 0 {
-			r4notwAVX2(&y0[0], &y1[0], &y2[0], &y3[0], &x0[0], &x1[0], &x2[0], &x3[0], s)
+			r4notwAVX2(r[0], r[1], r[2], r[3], r[4], r[5], r[6], r[7], s)
 			continue
 		}
 		w := (*[6]float64)(tw[6*p : 6*p+6])
-		r4twAVX2(&y0[0], &y1[0], &y2[0], &y3[0], &x0[0], &x1[0], &x2[0], &x3[0], s, w)
+		r4twAVX2(r[0], r[1], r[2], r[3], r[4], r[5], r[6], r[7], s, w)
 	}
 }
 
@@ -63,19 +67,11 @@ func r4PassSIMD(y, x []complex128, tw []float64, g *geom) {
 func r4LastSIMD(y, x []complex128, g *geom, scale float64) {
 	s := g.s
 	for p := range g.m {
-		xb, yb := p*g.xstep, p*g.ystep
-		x0 := x[xb+g.xo[0] : xb+g.xo[0]+s]
-		x1 := x[xb+g.xo[1] : xb+g.xo[1]+s]
-		x2 := x[xb+g.xo[2] : xb+g.xo[2]+s]
-		x3 := x[xb+g.xo[3] : xb+g.xo[3]+s]
-		y0 := y[yb+g.yo[0] : yb+g.yo[0]+s]
-		y1 := y[yb+g.yo[1] : yb+g.yo[1]+s]
-		y2 := y[yb+g.yo[2] : yb+g.yo[2]+s]
-		y3 := y[yb+g.yo[3] : yb+g.yo[3]+s]
+		r := runs4(y, x, g, p)
 		if scale == 1 {
-			r4notwAVX2(&y0[0], &y1[0], &y2[0], &y3[0], &x0[0], &x1[0], &x2[0], &x3[0], s)
+			r4notwAVX2(r[0], r[1], r[2], r[3], r[4], r[5], r[6], r[7], s)
 		} else {
-			r4scaleAVX2(&y0[0], &y1[0], &y2[0], &y3[0], &x0[0], &x1[0], &x2[0], &x3[0], s, scale)
+			r4scaleAVX2(r[0], r[1], r[2], r[3], r[4], r[5], r[6], r[7], s, scale)
 		}
 	}
 }
