@@ -36,10 +36,11 @@ type SENSE struct {
 	img   []complex128 // scratch, ImageLen
 	dat   []complex128 // scratch, DataLen, only with whitening
 
-	// Made by Normal on its first call: a second image, the data (when base
-	// has no Normal) and, with whitening, the mixed maps of Normal.
-	img2, stack []complex128
-	mixed       [][]complex128
+	// Made by Normal on its first call: a second image, the data E·src
+	// (when base has no Normal) and, with whitening, the mixed maps T_c
+	// (shared through the covariance).
+	img2, ex []complex128
+	mixed    [][]complex128
 }
 
 // NewSENSE builds the operator from a single-coil operator base, one
@@ -193,11 +194,11 @@ func (s *SENSE) Normal(dst, src []complex128) {
 	}
 	nb, ok := s.base.(NormalOperator)
 	if !ok {
-		if s.stack == nil {
-			s.stack = make([]complex128, s.DataLen())
+		if s.ex == nil {
+			s.ex = make([]complex128, s.DataLen())
 		}
-		s.Forward(s.stack, src)
-		s.Adjoint(dst, s.stack)
+		s.Forward(s.ex, src)
+		s.Adjoint(dst, s.ex)
 		return
 	}
 	if s.img2 == nil {
