@@ -498,7 +498,7 @@ type runEnv struct {
 	coils     *simulate.CoilArray
 	maps      [][]complex128
 	coilNoise *simulate.NoiseCovariance
-	combine   []float64 // 1/Σ|S_c|² per pixel: the adjoint's coil combination made unbiased
+	combine   []float64 // 1/(SᴴΨ⁻¹S) per pixel (1/Σ|S_c|² for white noise): the adjoint's coil combination made unbiased, see setCombine
 	// 3D: the phantom's cuts at the readout positions and their spectra on
 	// the plane grid; with coils, the maps on one plane (the ring surrounds
 	// the readout axis, so every plane sees the same sensitivities).
